@@ -1,0 +1,37 @@
+/**
+ * The desk's command line: `npm run liftwise -- COMMAND ...`.
+ * Each command lives in server/cli/commands/<name>.ts and exports `run(argv): Promise<number>`
+ * (the exit code). Output formats are contracts that desk scripts depend on.
+ */
+type Command = { summary: string; load: () => Promise<{ run(argv: string[]): Promise<number> }> };
+
+const commands: Record<string, Command> = {
+};
+
+function usage(): string {
+  const lines = Object.entries(commands).map(([name, c]) => `  ${name.padEnd(16)} ${c.summary}`);
+  return ['usage: npm run liftwise -- COMMAND [options]', '', 'commands:', ...lines].join('\n');
+}
+
+async function main(): Promise<number> {
+  const [name, ...rest] = process.argv.slice(2);
+  if (!name || name === '--help' || name === '-h') {
+    console.log(usage());
+    return name ? 0 : 2;
+  }
+  const command = commands[name];
+  if (!command) {
+    console.error(`liftwise: unknown command "${name}"\n\n${usage()}`);
+    return 2;
+  }
+  const mod = await command.load();
+  return mod.run(rest);
+}
+
+main().then(
+  (code) => process.exit(code),
+  (err: unknown) => {
+    console.error(`liftwise: ${err instanceof Error ? err.message : String(err)}`);
+    process.exit(1);
+  },
+);
