@@ -1,0 +1,95 @@
+/**
+ * Helpers shared by the start and test scripts. Plain Node with no packages: these run before
+ * the dependencies are known to be installed.
+ */
+import { spawn, spawnSync } from 'node:child_process';
+import fs from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+export const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+export const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
+
+export function log(message) {
+  console.log(`[liftwise] ${message}`);
+}
+
+export class StepError extends Error {}
+
+function mtime(file) {
+  try {
+    return fs.statSync(file).mtimeMs;
+  } catch {
+    return 0;
+  }
+}
+
+/** Installs npm dependencies when node_modules is missing or older than the lockfile. */
+export function ensureDependencies() {
+  const lock = path.join(root, 'package-lock.json');
+  const marker = path.join(root, 'node_modules', '.package-lock.json');
+  if (fs.existsSync(marker) && mtime(marker) >= mtime(lock)) return;
+  log('installing npm dependencies (npm ci) ...');
+  const res = spawnSync('npm', ['ci', '--no-audit', '--no-fund'], { cwd: root, stdio: 'inherit' });
+  if (res.status !== 0) throw new StepError('npm ci failed (see the output above)');
+}
+
+/** The newest modification time of any file below the given paths. */
+export function newestMtime(paths) {
+  let newest = 0;
+  const walk = (p) => {
+    let st;
+    try {
+      st = fs.statSync(p);
+    } catch {
+      return;
+    }
+    if (st.isDirectory()) for (const entry of fs.readdirSync(p)) walk(path.join(p, entry));
+    else newest = Math.max(newest, st.mtimeMs);
+  };
+  for (const p of paths) walk(path.join(root, p));
+  return newest;
+}
+
+/** Builds the client when dist/ is missing or older than its sources. */
+export function ensureClientBuilt({ force = false } = {}) {
+  const built = mtime(path.join(root, 'dist', 'index.html'));
+  const sources = newestMtime(['src', 'shared', 'public', 'index.html', 'vite.config.ts', 'tailwind.config.ts', 'package-lock.json']);
+  if (!force && built > sources) return;
+  log('building the client (vite build) ...');
+  const res = spawnSync(process.execPath, [path.join(root, 'node_modules', 'vite', 'bin', 'vite.js'), 'build', '--logLevel', 'warn'], {
+    cwd: root,
+    stdio: 'inherit',
+  });
+  if (res.status !== 0) throw new StepError('the client build failed (see the output above)');
+}
+
+/** Debian packages the tests use as reference tools, installed when missing and we are root. */
+export function ensureDebianPackages(requirements) {
+  const missing = requirements.filter((r) => !r.present());
+  if (missing.length === 0) return;
+  const names = [...new Set(missing.flatMap((r) => r.packages))];
+  if (!isRoot) {
+    throw new StepError(`missing Debian packages for the tests: ${names.join(' ')}. Install them: sudo apt-get install -y ${names.join(' ')}`);
+  }
+  log(`installing Debian packages: ${names.join(' ')} ...`);
+  const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
+  spawnSync('apt-get', ['update', '-qq'], { stdio: 'inherit', env });
+  const res = spawnSync('apt-get', ['install', '-y', '-qq', '--no-install-recommends', ...names], { stdio: 'inherit', env });
+  if (res.status !== 0) throw new StepError(`apt-get could not install ${names.join(' ')}`);
+  const still = missing.filter((r) => !r.present());
+  if (still.length) throw new StepError(`still missing after apt-get: ${still.map((r) => r.label).join(', ')}`);
+}
+
+export function hasCommand(name) {
+  return spawnSync('sh', ['-c', `command -v ${name}`], { stdio: 'ignore' }).status === 0;
+}
+
+/** Runs a command, streaming its output; resolves with its exit code. */
+export function run(cmd, args, opts = {}) {
+  return new Promise((resolve) => {
+    const child = spawn(cmd, args, { cwd: root, stdio: 'inherit', ...opts });
+    child.on('exit', (code, signal) => resolve(code ?? (signal ? 1 : 0)));
+    child.on('error', () => resolve(127));
+  });
+}

@@ -1,0 +1,110 @@
+import { randomUUID } from 'node:crypto';
+import path from 'node:path';
+import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
+import helmet from 'helmet';
+import { ZodError } from 'zod';
+import type { Config } from './config.ts';
+import type { DbHandle } from './db/client.ts';
+import { AppError } from './errors.ts';
+import type { Logger } from './logger.ts';
+import { appInfoRouter } from './routes/app-info.ts';
+import { healthRouter } from './routes/health.ts';
+
+export interface AppDeps {
+  config: Config;
+  db: DbHandle;
+  logger: Logger;
+}
+
+declare module 'express-serve-static-core' {
+  interface Request {
+    id: string;
+    log: Logger;
+  }
+}
+
+/** The Express app without listen(): server/index.ts serves it, tests drive it directly. */
+export function createApp(deps: AppDeps): express.Express {
+  const { config, logger } = deps;
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', config.trustProxy);
+
+  app.use(requestContext(logger));
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          // AG Grid's theming API and ECharts write inline styles.
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'"],
+          formAction: ["'self'"],
+          frameAncestors: ["'none'"],
+          objectSrc: ["'none'"],
+          upgradeInsecureRequests: config.publicUrl.startsWith('https:') ? [] : null,
+        },
+      },
+    }),
+  );
+  app.use(express.json({ limit: '1mb' }));
+  app.use(express.urlencoded({ extended: false, limit: '1mb' }));
+
+  app.use('/api', healthRouter(deps));
+  app.use('/api', appInfoRouter(deps));
+
+  app.use('/api', (_req, _res, next) => next(new AppError(404, 'not_found', 'No such API route.')));
+  if (config.serveClient) serveClient(app, config.clientDir);
+  app.use(errorHandler);
+  return app;
+}
+
+function requestContext(logger: Logger): RequestHandler {
+  return (req, res, next) => {
+    const incoming = req.get('x-request-id');
+    req.id = incoming && /^[\w.-]{8,80}$/.test(incoming) ? incoming : randomUUID();
+    req.log = logger.child({ requestId: req.id });
+    res.setHeader('X-Request-Id', req.id);
+    const started = process.hrtime.bigint();
+    res.on('finish', () => {
+      const ms = Number(process.hrtime.bigint() - started) / 1e6;
+      req.log.info({ method: req.method, url: req.originalUrl, status: res.statusCode, ms: Math.round(ms * 10) / 10 }, 'request');
+    });
+    next();
+  };
+}
+
+/** The built client on the same port; any non-API path falls back to index.html for the router. */
+function serveClient(app: express.Express, clientDir: string): void {
+  app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
+  app.get(/^\/(?!api\/|auth\/).*/, (_req, res) => {
+    res.sendFile(path.join(clientDir, 'index.html'));
+  });
+}
+
+const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
+  if (res.headersSent) return;
+  if (err instanceof AppError) {
+    res.status(err.status).json({ error: { code: err.code, message: err.message, details: err.details } });
+    return;
+  }
+  if (err instanceof ZodError) {
+    const details = err.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
+    res.status(400).json({ error: { code: 'invalid', message: 'The request does not have the expected form.', details } });
+    return;
+  }
+  const status = typeof err?.status === 'number' && err.status >= 400 && err.status < 500 ? err.status : 500;
+  if (status === 413) {
+    res.status(413).json({ error: { code: 'too_large', message: 'The request body is larger than allowed.' } });
+    return;
+  }
+  if (status < 500) {
+    res.status(status).json({ error: { code: 'bad_request', message: err?.message ?? 'Bad request.' } });
+    return;
+  }
+  (req.log ?? console).error({ err }, 'unhandled error');
+  res.status(500).json({ error: { code: 'internal', message: 'Something went wrong on the server.', requestId: req.id } });
+};

@@ -1,0 +1,17 @@
+import { EmptyState, PageHeader } from '@/components/Page.tsx';
+
+export function AdminPage() {
+  return (
+    <div className="flex flex-col gap-4">
+      <PageHeader title="Admin" subtitle="Regions, calibration sets, role mapping and mail subscriptions." />
+      <div className="grid gap-4 lg:grid-cols-2">
+        <EmptyState icon="admin" title="No regions loaded">
+          Hydro catchments and solar zones (GeoJSON with plant parameters) will be listed here with a map preview.
+        </EmptyState>
+        <EmptyState icon="admin" title="No role mapping">
+          Identity-provider groups and the Liftwise roles they grant will be listed here.
+        </EmptyState>
+      </div>
+    </div>
+  );
+}
