@@ -3,7 +3,21 @@
  * generated from it (`npm run db:generate`) and committed.
  */
 import { sql } from 'drizzle-orm';
-import { bigserial, index, inet, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import {
+  bigint,
+  bigserial,
+  boolean,
+  index,
+  inet,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  real,
+  text,
+  timestamp,
+  uuid,
+} from 'drizzle-orm/pg-core';
 
 /** People who have signed in through the identity provider; roles are re-read at each sign-in. */
 export const users = pgTable('users', {
@@ -40,4 +54,50 @@ export const auditEvents = pgTable(
     hash: text('hash').notNull().unique(),
   },
   (t) => [index('audit_events_at_idx').on(t.at), index('audit_events_action_idx').on(t.action)],
+);
+
+/**
+ * A run's life, in Liftwise's own words: received (stored, waiting), reading (decoding the file
+ * into the canonical grid), diagnosing (QG omega per member and valid time), deriving (regional
+ * signals and generation), ready; or rejected with a plain message.
+ */
+export const runState = pgEnum('run_state', ['received', 'reading', 'diagnosing', 'deriving', 'ready', 'rejected']);
+
+export interface RunGrid {
+  nlat: number;
+  nlon: number;
+  latFirst: number;
+  latLast: number;
+  lonFirst: number;
+  lonLast: number;
+  dlat: number;
+  dlon: number;
+}
+
+/** One uploaded model-run file. The file itself lives in the storage folder under its SHA-256. */
+export const runs = pgTable(
+  'runs',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    checksum: text('checksum').notNull().unique(),
+    sizeBytes: bigint('size_bytes', { mode: 'number' }).notNull(),
+    /** the uploader's file name, for display only; never used in a path */
+    fileName: text('file_name').notNull(),
+    format: text('format'),
+    model: text('model'),
+    cycle: timestamp('cycle', { withTimezone: true }),
+    members: integer('members').array(),
+    isEnsemble: boolean('is_ensemble'),
+    steps: integer('steps').array(),
+    levelsHpa: real('levels_hpa').array(),
+    variables: text('variables').array(),
+    grid: jsonb('grid').$type<RunGrid>(),
+    state: runState('state').notNull().default('received'),
+    progress: real('progress').notNull().default(0),
+    message: text('message'),
+    uploadedBy: uuid('uploaded_by').references(() => users.id),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('runs_created_idx').on(t.createdAt), index('runs_model_cycle_idx').on(t.model, t.cycle)],
 );

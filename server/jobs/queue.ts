@@ -1,0 +1,52 @@
+/**
+ * The work queue (pg-boss on the same PostgreSQL). Delivery is at least once, so every handler
+ * is idempotent: it checks the state it is asked to move from before doing anything.
+ */
+import PgBoss from 'pg-boss';
+import type { Logger } from '../logger.ts';
+
+export const QUEUE_NAMES = {
+  readRun: 'run-read',
+} as const;
+
+export type QueueName = (typeof QUEUE_NAMES)[keyof typeof QUEUE_NAMES];
+
+export interface RunJob {
+  runId: string;
+}
+
+export interface JobQueue {
+  send(name: QueueName, data: object): Promise<string | null>;
+  boss: PgBoss;
+  stop(): Promise<void>;
+}
+
+const RETRY = { retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds: 60 * 60 } as const;
+
+export async function createQueue(databaseUrl: string, logger: Logger): Promise<JobQueue> {
+  const boss = new PgBoss({ connectionString: databaseUrl, schema: 'pgboss', max: 4, supervise: true, schedule: false });
+  boss.on('error', (err) => logger.error({ err }, 'queue error'));
+  await boss.start();
+  for (const name of Object.values(QUEUE_NAMES)) await boss.createQueue(name, { name, ...RETRY });
+  return {
+    boss,
+    send: (name, data) => boss.send(name, data, RETRY),
+    stop: () => boss.stop({ graceful: true, timeout: 10_000 }),
+  };
+}
+
+export type JobHandler<T> = (job: PgBoss.JobWithMetadata<T>) => Promise<void>;
+
+/** Starts workers for the given handlers, one job at a time per queue (the numerics use their own thread pool). */
+export async function startWorkers(queue: JobQueue, handlers: Partial<Record<QueueName, JobHandler<RunJob>>>, logger: Logger): Promise<void> {
+  for (const [name, handler] of Object.entries(handlers)) {
+    await queue.boss.work<RunJob>(name, { includeMetadata: true, batchSize: 1, pollingIntervalSeconds: 1 }, async (jobs) => {
+      for (const job of jobs) {
+        const log = logger.child({ queue: name, jobId: job.id, runId: job.data.runId, attempt: job.retryCount + 1 });
+        log.info('job started');
+        await handler!(job);
+        log.info('job done');
+      }
+    });
+  }
+}

@@ -1,0 +1,67 @@
+import busboy from 'busboy';
+import { Router, type Request } from 'express';
+import type { Readable } from 'node:stream';
+import { z } from 'zod';
+import type { AppDeps } from '../app.ts';
+import { AppError, badRequest } from '../errors.ts';
+import { acceptUpload, getRun, listRuns, type RunsDeps } from '../services/runs.ts';
+
+const idParam = z.object({ id: z.uuid({ message: 'run id must be a UUID' }) });
+
+/** GET /api/runs, GET /api/runs/:id, POST /api/runs (multipart, field "file"). */
+export function runsRouter(deps: AppDeps & { queue: RunsDeps['queue'] }): Router {
+  const router = Router();
+  const services: RunsDeps = { db: deps.db, config: deps.config, queue: deps.queue, logger: deps.logger };
+
+  router.get('/runs', async (_req, res) => {
+    res.json({ runs: await listRuns(deps.db) });
+  });
+
+  router.get('/runs/:id', async (req, res) => {
+    const { id } = idParam.parse(req.params);
+    res.json({ run: await getRun(deps.db, id) });
+  });
+
+  router.post('/runs', async (req, res) => {
+    const userId = (req as { user?: { id?: string } }).user?.id ?? null;
+    const result = await receiveSingleFile(req, (stream, fileName) => acceptUpload(services, stream, { fileName, userId }));
+    res.status(result.duplicate ? 200 : 201).json(result);
+  });
+
+  return router;
+}
+
+/** Streams the one file of a multipart request into `handle`; other parts are ignored. */
+function receiveSingleFile<T>(req: Request, handle: (stream: Readable, fileName: string) => Promise<T>): Promise<T> {
+  return new Promise<T>((resolve, reject) => {
+    if (!req.is('multipart/form-data')) {
+      reject(badRequest('Send the file as multipart/form-data in a field named "file".'));
+      return;
+    }
+    let bb: busboy.Busboy;
+    try {
+      bb = busboy({ headers: req.headers, limits: { files: 1, fields: 10 } });
+    } catch (err) {
+      reject(badRequest(`The upload is not well-formed multipart: ${(err as Error).message}`));
+      return;
+    }
+    let work: Promise<T> | null = null;
+    bb.on('file', (field, stream, info) => {
+      if (field !== 'file' || work) {
+        stream.resume();
+        return;
+      }
+      work = handle(stream, info.filename ?? 'upload');
+      work.then(resolve, (err) => {
+        stream.resume();
+        reject(err);
+      });
+    });
+    bb.on('error', (err) => reject(badRequest(`The upload is not well-formed multipart: ${(err as Error).message}`)));
+    bb.on('close', () => {
+      if (!work) reject(badRequest('No file was sent: put the model run in a form field named "file".'));
+    });
+    req.on('aborted', () => reject(new AppError(400, 'upload_aborted', 'The upload was interrupted. Nothing was stored.')));
+    req.pipe(bb);
+  });
+}
