@@ -165,6 +165,12 @@ export function geometryProblems(geometry: RegionGeometry): string[] {
   return problems;
 }
 
+/** zod's message, with a plainer wording for the commonest hand-editing slip. */
+function issueMessage(issue: z.core.$ZodIssue): string {
+  if (issue.code === 'invalid_type' && /received undefined$/.test(issue.message)) return `is missing (expected ${issue.expected})`;
+  return issue.message;
+}
+
 function describe(index: number, id: string | null): string {
   return id ? `feature ${index} (id "${id}")` : `feature ${index}`;
 }
@@ -191,13 +197,13 @@ export function validateRegions(input: unknown): RegionValidation {
     const properties = regionPropertiesSchema.safeParse(feature.properties);
     if (!properties.success) {
       for (const issue of properties.error.issues) {
-        report(`properties${issue.path.length ? '.' + issuePath(issue.path) : ''}: ${issue.message}`);
+        report(`properties${issue.path.length ? '.' + issuePath(issue.path) : ''}: ${issueMessage(issue)}`);
       }
     }
     const geometry = regionGeometrySchema.safeParse(feature.geometry);
     if (!geometry.success) {
       for (const issue of geometry.error.issues) {
-        report(`geometry${issue.path.length ? '.' + issuePath(issue.path) : ''}: ${issue.message}`);
+        report(`geometry${issue.path.length ? '.' + issuePath(issue.path) : ''}: ${issueMessage(issue)}`);
       }
     } else {
       for (const problem of geometryProblems(geometry.data)) report(problem);
