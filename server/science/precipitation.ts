@@ -190,3 +190,29 @@ export function snowShareField(t: Float32Array, shape: ColumnShape, params: Rain
   for (let n = 0; n < levelT.length; n++) out[n] = snowShare(levelT[n] - ZERO_CELSIUS_K, params);
   return out;
 }
+
+/**
+ * Rain and snow amounts, mm, of an accumulation field split by a snow share field (both
+ * [lat][lon]). The share of an interval is the caller's choice (e.g. the mean of its two ends).
+ */
+export function splitRainSnow(accumulationMm: Float32Array, snowShareFraction: Float32Array): { rainMm: Float32Array; snowMm: Float32Array } {
+  if (accumulationMm.length !== snowShareFraction.length) {
+    throw new SignalInputError(`splitRainSnow: ${accumulationMm.length} accumulation values but ${snowShareFraction.length} snow shares`);
+  }
+  const rainMm = new Float32Array(accumulationMm.length);
+  const snowMm = new Float32Array(accumulationMm.length);
+  for (let n = 0; n < accumulationMm.length; n++) {
+    snowMm[n] = accumulationMm[n] * snowShareFraction[n];
+    rainMm[n] = accumulationMm[n] - snowMm[n];
+  }
+  return { rainMm, snowMm };
+}
+
+/**
+ * Ratio of diagnosed to model precipitation over the same interval and region, the number a
+ * forecaster calibrates E with. Below `minimumModelMm` (default 0.1 mm, a trace) the ratio
+ * means nothing and is NaN.
+ */
+export function diagnosedToModelRatio(diagnosedMm: number, modelMm: number, minimumModelMm = 0.1): number {
+  return modelMm >= minimumModelMm ? diagnosedMm / modelMm : Number.NaN;
+}

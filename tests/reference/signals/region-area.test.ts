@@ -1,6 +1,7 @@
 /**
  * Region weights against an outside area computation.
- * Reference tool: @turf/area (spherical polygon area, radius 6371008.8 m). Our weights use the
+ * Reference tool: @turf/area (spherical polygon area, radius 6371008.8 m; source of its method:
+ * Chamberlain and Duquette (2007), "Some algorithms for polygons on a sphere"). Our weights use the
  * exact spherical cell area with a = 6.371e6 m (SCIENCE.md); the radii differ by 0.0003 %.
  */
 import { readFileSync } from 'node:fs';

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import {
   accumulatePrecipitation, condensationPrecipitationRate, intervalsFromRunningTotal, rainSnowLevelTemperature,
-  saturationWeight, snowShare, snowShareField,
+  diagnosedToModelRatio, saturationWeight, snowShare, snowShareField, splitRainSnow,
 } from '../../../../server/science/precipitation.ts';
 import { moistAdiabaticTemperatureSlope, saturationSpecificHumidity } from '../../../../server/science/thermo.ts';
 
@@ -153,5 +153,17 @@ describe('rain/snow split (temperature ramp with parameter thresholds)', () => {
   it('refuses 850 hPa when the levels do not reach it', () => {
     const shape = { nlat: 1, nlon: 1, levelsPa: [7e4, 5e4] };
     expect(() => rainSnowLevelTemperature(new Float32Array([260, 250]), shape, '850hPa')).toThrow(/850 hPa is outside/);
+  });
+});
+
+describe('splitRainSnow and the diagnosed / model ratio', () => {
+  it('splits an accumulation by the snow share, keeping the total', () => {
+    const { rainMm, snowMm } = splitRainSnow(new Float32Array([10, 4]), new Float32Array([0.25, 1]));
+    expect([rainMm[0], snowMm[0], rainMm[1], snowMm[1]]).toEqual([7.5, 2.5, 0, 4]);
+    expect(() => splitRainSnow(new Float32Array(2), new Float32Array(3))).toThrow(/snow shares/);
+  });
+  it('gives diagnosed / model, and NaN when the model has only a trace', () => {
+    expect(diagnosedToModelRatio(6, 4)).toBe(1.5);
+    expect(Number.isNaN(diagnosedToModelRatio(1, 0.05))).toBe(true);
   });
 });
