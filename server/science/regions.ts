@@ -38,6 +38,9 @@ export interface RegionWeights {
 export function cellEdges(centres: ArrayLike<number>, clampTo?: [number, number]): Float64Array {
   const n = centres.length;
   if (n < 2) throw new RegionGridError(`a grid axis needs at least 2 points, got ${n}`);
+  for (let i = 1; i < n; i++) {
+    if (!(centres[i] > centres[i - 1])) throw new RegionGridError(`grid axis must ascend (canonical grid), but point ${i} is ${centres[i]} after ${centres[i - 1]}`);
+  }
   const edges = new Float64Array(n + 1);
   for (let i = 1; i < n; i++) edges[i] = 0.5 * (centres[i - 1] + centres[i]);
   edges[0] = centres[0] - 0.5 * (centres[1] - centres[0]);

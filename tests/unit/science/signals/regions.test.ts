@@ -69,6 +69,10 @@ describe('regionWeights', () => {
     expect(() => regionWeights('half-out', rectangle(25, 60, 27, 61), lat, lon)).toThrow(/half-out/);
   });
 
+  it('refuses a grid axis that does not ascend (canonical grid: south to north)', () => {
+    expect(() => regionWeights('r', rectangle(10, 60, 11, 61), Float64Array.from(lat).reverse(), lon)).toThrow(/must ascend/);
+  });
+
   it('refuses a region the grid cannot see', () => {
     expect(() => regionWeights('tiny', rectangle(10.01, 60.01, 10.02, 60.02), lat, lon)).toThrow(/tiny.*smaller than the grid/);
   });
