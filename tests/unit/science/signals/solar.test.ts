@@ -124,7 +124,7 @@ describe('solarZoneEnergy (hourly steps, daily GWh per UTC day)', () => {
     expect(days[0].hoursCovered).toBe(24);
     const day0 = hours.filter((h) => h.startMs < ref + 86_400_000).reduce((s, h) => s + h.powerMw, 0) / 1000;
     expect(days[0].energyGwh).toBeCloseTo(day0, 12);
-    // a clear June day of a 200 MW south-facing zone at 57 N: roughly 1 to 2 GWh (capacity factor 20-40 %)
+    // a clear June day of a 200 MW south-facing zone at 57 N: roughly 1 to 2 GWh, a daily capacity factor of 20-40 % (from memory)
     expect(days[0].energyGwh).toBeGreaterThan(1);
     expect(days[0].energyGwh).toBeLessThan(2);
   });
