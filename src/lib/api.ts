@@ -21,6 +21,11 @@ export function setCsrfToken(token: string | null): void {
   csrfToken = token;
 }
 
+/** The header a state-changing request made outside apiFetch (e.g. an XHR upload) must carry. */
+export function csrfHeader(): Record<string, string> {
+  return csrfToken ? { 'X-CSRF-Token': csrfToken } : {};
+}
+
 export async function apiFetch<T>(path: string, init: RequestInit = {}): Promise<T> {
   const headers = new Headers(init.headers);
   headers.set('Accept', 'application/json');

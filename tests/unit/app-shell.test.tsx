@@ -14,6 +14,28 @@ function renderAt(path: string) {
   return router;
 }
 
+const RUN = {
+  id: '6f1c2a52-2d1e-4c35-9a53-0d3c1c8b7e10',
+  checksum: 'a'.repeat(64),
+  sizeBytes: 1_200_000,
+  fileName: 'nvm.grib2',
+  format: 'grib2',
+  model: 'NVM',
+  cycle: '2026-12-01T00:00:00.000Z',
+  members: [0],
+  isEnsemble: false,
+  steps: [0, 6, 12],
+  levelsHpa: [1000, 850, 500],
+  variables: ['z', 't'],
+  grid: { nlat: 45, nlon: 81, latFirst: 72, latLast: 50, lonFirst: -6, lonLast: 34, dlat: 0.5, dlon: 0.5 },
+  state: 'ready',
+  progress: 1,
+  message: null,
+  uploadedBy: null,
+  createdAt: '2026-12-01T05:00:00.000Z',
+  updatedAt: '2026-12-01T05:01:00.000Z',
+};
+
 beforeEach(() => {
   vi.stubGlobal(
     'fetch',
@@ -22,6 +44,8 @@ beforeEach(() => {
       if (url.endsWith('/api/app-info')) {
         return new Response(JSON.stringify({ environment: 'development', version: '0.1.0', devTools: true }), { status: 200 });
       }
+      if (url.endsWith('/api/runs')) return new Response(JSON.stringify({ runs: [] }), { status: 200 });
+      if (url.endsWith(`/api/runs/${RUN.id}`)) return new Response(JSON.stringify({ run: RUN }), { status: 200 });
       return new Response(JSON.stringify({ error: { code: 'not_found', message: 'x' } }), { status: 404 });
     }),
   );
@@ -34,7 +58,7 @@ afterEach(() => {
 describe('every screen of the route table renders', () => {
   it.each([
     ['/runs', 'Runs', 'No model runs yet'],
-    ['/runs/abc', 'Run view', 'No diagnosis for this run'],
+    [`/runs/${RUN.id}`, 'Run view', 'No diagnosis for this run'],
     ['/scenarios', 'Scenarios', 'No scenarios yet'],
     ['/regime-calls', 'Regime calls', 'No regime calls published'],
     ['/snapshots', 'Snapshots', 'No snapshots sealed'],
@@ -43,7 +67,7 @@ describe('every screen of the route table renders', () => {
   ])('%s shows its heading and an honest empty state', async (path, heading, empty) => {
     renderAt(path);
     expect(await screen.findByRole('heading', { level: 1, name: heading })).toBeInTheDocument();
-    expect(screen.getByText(empty)).toBeInTheDocument();
+    expect(await screen.findByText(empty)).toBeInTheDocument();
     expect(screen.getByRole('navigation', { name: 'Screens' })).toBeInTheDocument();
   });
 
@@ -67,5 +91,20 @@ describe('every screen of the route table renders', () => {
   it('shows the development-only Outbox in the navigation when the server says so', async () => {
     renderAt('/runs');
     expect(await screen.findByRole('link', { name: 'Outbox' })).toBeInTheDocument();
+  });
+});
+
+describe('the Runs screen', () => {
+  it('shows the upload panel with a keyboard-reachable file button', async () => {
+    renderAt('/runs');
+    expect(await screen.findByRole('button', { name: 'Choose file…' })).toBeInTheDocument();
+    expect(screen.getByLabelText('Model run file')).toHaveAttribute('type', 'file');
+  });
+
+  it('the run view shows the run header with model, grid and checksum', async () => {
+    renderAt(`/runs/${RUN.id}`);
+    expect(await screen.findByText('NVM')).toBeInTheDocument();
+    expect(screen.getByText('81×45, 0.5°×0.5°')).toBeInTheDocument();
+    expect(screen.getByText(`${'a'.repeat(16)}…`)).toBeInTheDocument();
   });
 });
