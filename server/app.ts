@@ -6,14 +6,17 @@ import { ZodError } from 'zod';
 import type { Config } from './config.ts';
 import type { DbHandle } from './db/client.ts';
 import { AppError } from './errors.ts';
+import type { JobQueue } from './jobs/queue.ts';
 import type { Logger } from './logger.ts';
 import { appInfoRouter } from './routes/app-info.ts';
 import { healthRouter } from './routes/health.ts';
+import { runsRouter } from './routes/runs.ts';
 
 export interface AppDeps {
   config: Config;
   db: DbHandle;
   logger: Logger;
+  queue: JobQueue;
 }
 
 declare module 'express-serve-static-core' {
@@ -55,6 +58,7 @@ export function createApp(deps: AppDeps): express.Express {
 
   app.use('/api', healthRouter(deps));
   app.use('/api', appInfoRouter(deps));
+  app.use('/api', runsRouter(deps));
 
   app.use('/api', (_req, _res, next) => next(new AppError(404, 'not_found', 'No such API route.')));
   if (config.serveClient) serveClient(app, config.clientDir);

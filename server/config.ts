@@ -32,6 +32,7 @@ const schema = z
     SERVE_CLIENT: flag.optional(),
     TRUST_PROXY: flag.default(false),
     CODE_VERSION: z.string().min(1).optional(),
+    IN_PROCESS_WORKER: flag.default(true),
   })
   .transform((env) => {
     const dataDir = path.resolve(PROJECT_ROOT, env.DATA_DIR);
@@ -51,6 +52,7 @@ const schema = z
       serveClient: env.SERVE_CLIENT ?? fs.existsSync(path.join(clientDir, 'index.html')),
       trustProxy: env.TRUST_PROXY,
       codeVersion: env.CODE_VERSION ?? readCodeVersion(),
+      inProcessWorker: env.IN_PROCESS_WORKER,
     };
   });
 

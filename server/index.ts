@@ -7,6 +7,8 @@ import { createApp } from './app.ts';
 import { ConfigError, loadConfig } from './config.ts';
 import { createDb } from './db/client.ts';
 import { applyMigrations } from './db/migrate.ts';
+import { startAllWorkers } from './jobs/handlers.ts';
+import { createQueue } from './jobs/queue.ts';
 import { createLogger } from './logger.ts';
 
 async function main(): Promise<void> {
@@ -18,7 +20,9 @@ async function main(): Promise<void> {
   } catch (err) {
     throw new Error(`cannot migrate the database at ${redact(config.databaseUrl)}: ${(err as Error).message}`);
   }
-  const app = createApp({ config, db, logger });
+  const queue = await createQueue(config.databaseUrl, logger);
+  if (config.inProcessWorker) await startAllWorkers({ db, config, queue, logger });
+  const app = createApp({ config, db, logger, queue });
   const server: Server = app.listen(config.port, config.host);
   await new Promise<void>((resolve, reject) => {
     server.once('listening', resolve);
@@ -35,7 +39,10 @@ async function main(): Promise<void> {
 
   const shutdown = () => {
     server.close();
-    void db.close().finally(() => process.exit(0));
+    void queue
+      .stop()
+      .catch(() => {})
+      .finally(() => db.close().finally(() => process.exit(0)));
     setTimeout(() => process.exit(0), 5_000).unref();
   };
   process.once('SIGINT', shutdown);

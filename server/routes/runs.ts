@@ -9,7 +9,7 @@ import { acceptUpload, getRun, listRuns, type RunsDeps } from '../services/runs.
 const idParam = z.object({ id: z.uuid({ message: 'run id must be a UUID' }) });
 
 /** GET /api/runs, GET /api/runs/:id, POST /api/runs (multipart, field "file"). */
-export function runsRouter(deps: AppDeps & { queue: RunsDeps['queue'] }): Router {
+export function runsRouter(deps: AppDeps): Router {
   const router = Router();
   const services: RunsDeps = { db: deps.db, config: deps.config, queue: deps.queue, logger: deps.logger };
 

@@ -6,7 +6,7 @@ import { loadConfig } from '../../server/config.ts';
 import { createDb } from '../../server/db/client.ts';
 import { committedMigrations } from '../../server/db/migrate.ts';
 import { createLogger } from '../../server/logger.ts';
-import { startTestApp, type TestApp } from './support.ts';
+import { inertQueue, startTestApp, type TestApp } from './support.ts';
 
 describe('GET /api/health against the real database', () => {
   let t: TestApp;
@@ -50,7 +50,7 @@ describe('GET /api/health with the database down', () => {
     // Port 9 (discard) on loopback has no PostgreSQL behind it.
     const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: 'postgres://liftwise@127.0.0.1:9/none', SERVE_CLIENT: 'false' });
     const db = createDb(config.databaseUrl, 1);
-    const app = createApp({ config, db, logger: createLogger('silent') });
+    const app = createApp({ config, db, logger: createLogger('silent'), queue: inertQueue });
     const server = await new Promise<Server>((resolve) => {
       const s = app.listen(0, '127.0.0.1', () => resolve(s));
     });
