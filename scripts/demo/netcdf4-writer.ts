@@ -11,7 +11,7 @@
  * HDF5 stamps object headers with the wall-clock time; to keep output byte-identical for the
  * same input, the clock h5wasm reads is pinned to `fixedTimeMs` while the file is written.
  */
-import h5wasm from 'h5wasm/node';
+import h5wasm, { type Dtype, type GuessableDataTypes } from 'h5wasm/node';
 
 export type AttributeValue = string | number | number[] | Float32Array | Float64Array | Int32Array;
 
@@ -39,12 +39,12 @@ export interface NcFile {
   globalAttrs: Record<string, AttributeValue>;
 }
 
-type Attributable = { create_attribute(name: string, data: never, shape?: number[] | null, dtype?: string | null): void };
+/** The part of h5wasm's File and Dataset this writer uses for attributes. */
+interface Attributable {
+  create_attribute(name: string, data: GuessableDataTypes, shape?: number[] | null, dtype?: Dtype | null): void;
+}
 
-function writeAttribute(target: Attributable, name: string, value: AttributeValue): void {
-  const t = target as unknown as {
-    create_attribute(name: string, data: unknown, shape?: number[] | null, dtype?: string | null): void;
-  };
+function writeAttribute(t: Attributable, name: string, value: AttributeValue): void {
   if (typeof value === 'string') {
     if (!/^[\x20-\x7e]*$/.test(value)) throw new Error(`NetCDF-4 writer: attribute ${name} must be printable ASCII`);
     // Fixed-length ASCII: NC_CHAR in netCDF. A zero-length string is not a valid HDF5 type.
@@ -98,7 +98,7 @@ export async function writeNetcdf4(path: string, spec: NcFile, fixedTimeMs: numb
       for (const d of spec.dimensions) {
         const ds = file.create_dataset({ name: d.name, data: d.values, track_order: true });
         ds.make_scale(d.name);
-        for (const [k, val] of Object.entries(d.attrs)) writeAttribute(ds as unknown as Attributable, k, val);
+        for (const [k, val] of Object.entries(d.attrs)) writeAttribute(ds, k, val);
       }
       for (const v of spec.variables) {
         const shape = v.dims.map((d) => dimSize.get(d) as number);
@@ -112,9 +112,9 @@ export async function writeNetcdf4(path: string, spec: NcFile, fixedTimeMs: numb
           track_order: true,
         });
         v.dims.forEach((d, axis) => ds.attach_scale(axis, d));
-        for (const [k, val] of Object.entries(v.attrs)) writeAttribute(ds as unknown as Attributable, k, val);
+        for (const [k, val] of Object.entries(v.attrs)) writeAttribute(ds, k, val);
       }
-      for (const [k, val] of Object.entries(spec.globalAttrs)) writeAttribute(file as unknown as Attributable, k, val);
+      for (const [k, val] of Object.entries(spec.globalAttrs)) writeAttribute(file, k, val);
     } finally {
       file.close();
     }
