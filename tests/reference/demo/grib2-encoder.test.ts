@@ -73,6 +73,12 @@ const cases: Case[] = [
     product: { discipline: 0, category: 6, number: 1, levelType: 1, secondLevelType: 8, levelValue: 0, stepHours: 30 },
     packing: simple(1), values: field(8, 50, 50).map((x) => Math.min(100, Math.max(0, x))),
     expect: { shortName: 'tcc', level: 0, stepRange: '30', number: 'not_found', typeOfLevel: 'entireAtmosphere' } },
+  // Group widths that differ from group to group, so the width block (13 groups) ends inside an
+  // octet: exercises the octet alignment between the blocks of template 5.2's section 7.
+  { label: 'relative humidity with mixed smooth and rough parts, complex with groups of 5',
+    product: { discipline: 0, category: 1, number: 1, levelType: 100, levelValue: 40000, stepHours: 66 },
+    packing: complex(1, 5), values: Float64Array.from({ length: n }, (_, i) => (i < 20 ? 40 + i * 0.01 : 50 + 45 * Math.sin(i * i * 0.7))),
+    expect: { shortName: 'r', level: 400, stepRange: '66', number: 'not_found', typeOfLevel: 'isobaricInhPa' } },
 ];
 
 // Total precipitation 0/1/8 has no short name in ecCodes 2.28's WMO tables (it reports
