@@ -8,7 +8,10 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import h5wasm from 'h5wasm/node';
+import { fieldsAt, gridAxes, makeContext } from '../../../scripts/demo/atmosphere.ts';
 import { generateDemo, keepSignificantBits, type DemoConfig, type Manifest } from '../../../scripts/demo/generate.ts';
+import { CURRENT_CYCLE, memberWaves } from '../../../scripts/demo/runs.ts';
 
 const config: DemoConfig = {
   deterministicDomain: { latSouth: 58, latNorth: 62, lonWest: 4, lonEast: 10, resolution: 1 },
@@ -101,6 +104,27 @@ describe('generateDemo', () => {
     for (const f of first.files.filter((x) => x.format === 'netcdf4')) {
       const head = fs.readFileSync(path.join(firstDir, f.path)).subarray(0, 8);
       expect(Array.from(head)).toEqual([0x89, 0x48, 0x44, 0x46, 0x0d, 0x0a, 0x1a, 0x0a]);
+    }
+  });
+
+  it('h5wasm (the ingest side) reads the ensemble back: shape, attributes, member 1 values', async () => {
+    await h5wasm.ready;
+    const file = new h5wasm.File(path.join(firstDir, 'nve-2026120100.nc'), 'r');
+    try {
+      const z = file.get('z') as InstanceType<typeof h5wasm.Dataset>;
+      const axes = gridAxes(config.ensembleDomain);
+      const nlev = config.levelsHpa.length;
+      expect(z.shape).toEqual([config.steps.length, config.members, nlev, axes.lat.length, axes.lon.length]);
+      expect(z.attrs.standard_name.value).toBe('geopotential');
+      expect(z.get_attached_scales(1)).toEqual(['/member']);
+      const slab = z.slice([[2, 3], [1, 2]]) as Float32Array;
+      const ctx = makeContext(config.ensembleDomain, memberWaves(CURRENT_CYCLE, config.members, config.seed)[1]);
+      const levelsPa = config.levelsHpa.map((p) => p * 100);
+      const want = fieldsAt(ctx, axes, levelsPa, 0, config.steps[2]).z;
+      expect(slab.length).toBe(want.length);
+      for (let i = 0; i < want.length; i++) expect(Math.abs(slab[i] - want[i])).toBeLessThanOrEqual(Math.abs(want[i]) * 2 ** -18);
+    } finally {
+      file.close();
     }
   });
 
