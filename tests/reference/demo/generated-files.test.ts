@@ -2,7 +2,7 @@
  * The generator's files read by independent tools, compared with the synthetic atmosphere:
  * the deterministic GRIB2 runs through ecCodes (reference tool: ecCodes grib_ls and
  * grib_get_data), the ensemble NetCDF-4 through the netCDF library (reference tool: netCDF
- * ncdump). Source for g0 = 9.80665 m s-2: WMO standard gravity (gpm to geopotential).
+ * ncdump). g0 = 9.80665 m s-2 converts gpm to geopotential (source: WMO standard gravity).
  */
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';

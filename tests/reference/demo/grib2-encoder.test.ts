@@ -1,8 +1,8 @@
 /**
  * The demo GRIB2 encoder checked against ecCodes, an independent GRIB2 implementation.
  * Reference tool: ecCodes grib_ls and grib_get_data (Debian package libeccodes-tools).
- * Source for the layout: WMO Manual on Codes, FM 92 GRIB edition 2 (templates 3.0, 4.0,
- * 4.1, 4.8, 4.11, 5.0, 5.2).
+ * Layout of templates 3.0, 4.0, 4.1, 4.8, 4.11, 5.0, 5.2 (source: WMO Manual on Codes,
+ * FM 92 GRIB edition 2).
  */
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';

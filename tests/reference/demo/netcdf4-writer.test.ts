@@ -2,7 +2,7 @@
  * The demo NetCDF-4 writer (h5wasm) checked with the netCDF library itself.
  * Reference tool: netCDF ncdump (Debian package netcdf-bin), which reads the file through
  * the netCDF-C library: named dimensions only appear when the HDF5 dimension scales are right.
- * Source for the attribute meanings: the CF Conventions (standard_name, units, axis).
+ * Attribute meanings: standard_name, units, axis (source: the CF Conventions).
  */
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
