@@ -8,6 +8,8 @@ import type { DbHandle } from './db/client.ts';
 import { AppError } from './errors.ts';
 import type { JobQueue } from './jobs/queue.ts';
 import type { Logger } from './logger.ts';
+import type { MailService } from './mail/index.ts';
+import { outboxRouter } from './routes/outbox.ts';
 import { appInfoRouter } from './routes/app-info.ts';
 import { healthRouter } from './routes/health.ts';
 import { runsRouter } from './routes/runs.ts';
@@ -17,6 +19,7 @@ export interface AppDeps {
   db: DbHandle;
   logger: Logger;
   queue: JobQueue;
+  mail?: MailService;
 }
 
 declare module 'express-serve-static-core' {
@@ -59,6 +62,7 @@ export function createApp(deps: AppDeps): express.Express {
   app.use('/api', healthRouter(deps));
   app.use('/api', appInfoRouter(deps));
   app.use('/api', runsRouter(deps));
+  if (!config.isProduction) app.use('/api', outboxRouter(deps));
 
   app.use('/api', (_req, _res, next) => next(new AppError(404, 'not_found', 'No such API route.')));
   if (config.serveClient) serveClient(app, config.clientDir);

@@ -33,6 +33,9 @@ const schema = z
     TRUST_PROXY: flag.default(false),
     CODE_VERSION: z.string().min(1).optional(),
     IN_PROCESS_WORKER: flag.default(true),
+    SMTP_URL: z.string().regex(/^smtps?:\/\//, 'must be an smtp:// or smtps:// URL').optional(),
+    MAIL_FROM: z.string().min(3).default('Liftwise <liftwise@nordvale.example>'),
+    MAIL_CATCHER_PORT: port.default(2525),
   })
   .transform((env) => {
     const dataDir = path.resolve(PROJECT_ROOT, env.DATA_DIR);
@@ -53,10 +56,23 @@ const schema = z
       trustProxy: env.TRUST_PROXY,
       codeVersion: env.CODE_VERSION ?? readCodeVersion(),
       inProcessWorker: env.IN_PROCESS_WORKER,
+      /** null: no mail server configured; outside production the local mail catcher stands in */
+      smtpUrl: env.SMTP_URL ?? null,
+      mailFrom: env.MAIL_FROM,
+      mailCatcherPort: env.MAIL_CATCHER_PORT,
+      mailCatcherDir: path.join(dataDir, 'mail-catcher'),
     };
   });
 
 export type Config = z.output<typeof schema>;
+
+/** Settings production cannot do without (checked after parsing, one line each). */
+function productionProblems(config: Config): string[] {
+  if (!config.isProduction) return [];
+  const problems: string[] = [];
+  if (!config.smtpUrl) problems.push('configuration: SMTP_URL is required in production (the organisation\'s mail server)');
+  return problems;
+}
 
 /** A bad setting: the message is one line per variable, naming it. */
 export class ConfigError extends Error {
@@ -68,7 +84,11 @@ export class ConfigError extends Error {
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const parsed = schema.safeParse(env);
-  if (parsed.success) return parsed.data;
+  if (parsed.success) {
+    const problems = productionProblems(parsed.data);
+    if (problems.length) throw new ConfigError(problems);
+    return parsed.data;
+  }
   const problems = parsed.error.issues.map((issue) => {
     const name = issue.path.join('.');
     const got = env[name];

@@ -10,6 +10,7 @@ import { applyMigrations } from './db/migrate.ts';
 import { startAllWorkers } from './jobs/handlers.ts';
 import { createQueue } from './jobs/queue.ts';
 import { createLogger } from './logger.ts';
+import { startMail } from './mail/index.ts';
 
 async function main(): Promise<void> {
   const config = loadConfig();
@@ -22,7 +23,8 @@ async function main(): Promise<void> {
   }
   const queue = await createQueue(config.databaseUrl, logger);
   if (config.inProcessWorker) await startAllWorkers({ db, config, queue, logger });
-  const app = createApp({ config, db, logger, queue });
+  const mail = await startMail(config, db, logger);
+  const app = createApp({ config, db, logger, queue, mail });
   const server: Server = app.listen(config.port, config.host);
   await new Promise<void>((resolve, reject) => {
     server.once('listening', resolve);
@@ -39,8 +41,7 @@ async function main(): Promise<void> {
 
   const shutdown = () => {
     server.close();
-    void queue
-      .stop()
+    void Promise.all([queue.stop(), mail.stop()])
       .catch(() => {})
       .finally(() => db.close().finally(() => process.exit(0)));
     setTimeout(() => process.exit(0), 5_000).unref();

@@ -101,3 +101,31 @@ export const runs = pgTable(
   },
   (t) => [index('runs_created_idx').on(t.createdAt), index('runs_model_cycle_idx').on(t.model, t.cycle)],
 );
+
+export const mailState = pgEnum('mail_state', ['pending', 'sent', 'failed']);
+
+/**
+ * The transactional outbox: a mail row is written in the same transaction as the action that
+ * causes it (a published call), and a sender delivers it with retries, so a mail server that is
+ * down loses nothing.
+ */
+export const outboxMails = pgTable(
+  'outbox_mails',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    kind: text('kind').notNull(),
+    relatedType: text('related_type'),
+    relatedId: text('related_id'),
+    recipients: text('recipients').array().notNull(),
+    subject: text('subject').notNull(),
+    textBody: text('text_body').notNull(),
+    htmlBody: text('html_body'),
+    state: mailState('state').notNull().default('pending'),
+    attempts: integer('attempts').notNull().default(0),
+    nextAttemptAt: timestamp('next_attempt_at', { withTimezone: true }).notNull().defaultNow(),
+    lastError: text('last_error'),
+    sentAt: timestamp('sent_at', { withTimezone: true }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index('outbox_mails_due_idx').on(t.state, t.nextAttemptAt)],
+);
