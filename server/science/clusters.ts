@@ -216,8 +216,8 @@ function squaredDistance(a: Float64Array, b: Float64Array): number {
  * k-means partition of points (Lloyd 1982; MacQueen 1967) with k-means++ seeding (Arthur and
  * Vassilvitskii 2007) from the seeded PRNG, repeated `restarts` times, keeping the lowest
  * within-cluster sum of squares as Michelangeli et al. (1995) do with their many random
- * starts. Deterministic: the same points, k and seed give the same result; labels are
- * canonical (size descending, then lowest member index) so they do not depend on the start.
+ * starts. Deterministic: the same points, k and seed give the same result, whatever the
+ * order of the points; labels are canonical (size descending, then lowest member index).
  */
 export function kMeans(points: Float64Array[], k: number, seed: number, options: KMeansOptions = {}): KMeansResult {
   checkClusterCount(k);
@@ -233,13 +233,24 @@ export function kMeans(points: Float64Array[], k: number, seed: number, options:
     if (!pt.every(Number.isFinite)) throw new ClusterInputError(`point ${m} has a non-finite coordinate`);
   });
 
+  // The starts run on the points in a canonical (lexicographic) order, so that the members'
+  // order in the upload cannot change which local optimum the seeded starts reach.
+  const order = Array.from(points, (_, m) => m).sort((a, b) => lexicographic(points[a], points[b]) || a - b);
+  const sorted = order.map((m) => points[m]);
   const random = mulberry32(seed);
   let best: KMeansResult | null = null;
   for (let r = 0; r < restarts; r++) {
-    const run = lloyd(points, kMeansPlusPlus(points, k, random), maxIterations);
+    const run = lloyd(sorted, kMeansPlusPlus(sorted, k, random), maxIterations);
     if (!best || run.withinSumOfSquares < best.withinSumOfSquares) best = run;
   }
-  return canonicalLabels(points, best!, k);
+  const assignments = new Int32Array(points.length);
+  order.forEach((m, s) => { assignments[m] = best!.assignments[s]; });
+  return canonicalLabels(points, { ...best!, assignments }, k);
+}
+
+function lexicographic(a: Float64Array, b: Float64Array): number {
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return a[i] - b[i];
+  return 0;
 }
 
 /** k-means++: each further centre drawn with probability proportional to D^2 to the nearest. */
