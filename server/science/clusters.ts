@@ -2,8 +2,8 @@
  * Clustering of ensemble members into a few scenario groups (SCIENCE.md section 6): EOF
  * truncation of 500 hPa geopotential anomalies followed by k-means in the space of the
  * leading principal components, the regime-analysis method of Michelangeli, Vautard and
- * Legras (1995, J. Atmos. Sci. 52, 1237-1256), as used for ensemble clustering by e.g.
- * Ferranti and Corti (2011). Cluster quality is the mean silhouette of Rousseeuw (1987).
+ * Legras (1995, J. Atmos. Sci. 52, 1237-1256), here applied to the members of one ensemble
+ * forecast. Cluster quality is the mean silhouette of Rousseeuw (1987).
  *
  * Fields are one Float32Array per member laid out [lat][lon] (index = iLat * nLon + iLon),
  * in geopotential metres (gpm) or m^2 s^-2: the method is linear, the units carry through.
@@ -64,8 +64,9 @@ function checkFields(fields: Float32Array[], lat: Float64Array): GridShape {
 /**
  * EOF area weight per latitude row, sqrt(cos lat) (dimensionless): weighting the anomalies
  * by sqrt(cos lat) makes the covariance matrix area-weighted, so the EOFs do not over-count
- * the crowded high-latitude points of a regular lat-lon grid (North et al. 1982; Hannachi,
- * Jolliffe and Stephenson 2007, Int. J. Climatol. 27, section 3).
+ * the crowded high-latitude points of a regular lat-lon grid (Chung and Nigam 1999, J.
+ * Geophys. Res. 104, 16925-16928; Hannachi, Jolliffe and Stephenson 2007, Int. J. Climatol.
+ * 27, 1119-1152).
  */
 export function eofAreaWeights(lat: Float64Array): Float64Array {
   return Float64Array.from(lat, (deg) => Math.sqrt(Math.max(0, Math.cos((deg * Math.PI) / 180))));

@@ -26,13 +26,14 @@ const MAX_SWEEPS = 60;
 /**
  * Eigen-decomposition A = V diag(values) V^T of a real symmetric n x n matrix (row-major).
  *
- * Method: cyclic Jacobi rotations (Jacobi 1846; Rutishauser 1966; Golub and Van Loan,
- * Matrix Computations, 4th ed., algorithm 8.5.3 with the stable 2x2 symmetric Schur step
- * 8.5.1). Chosen over QR iteration because it is short, unconditionally convergent, and
+ * Method: cyclic Jacobi rotations (Jacobi 1846; Rutishauser 1966, Numer. Math. 9; Golub and
+ * Van Loan, Matrix Computations, the cyclic Jacobi method with the stable 2x2 symmetric
+ * Schur step). Chosen over QR iteration because it is short, unconditionally convergent, and
  * yields eigenvectors orthonormal to machine precision, which the EOF patterns inherit.
  * A rotation is skipped when |a_pq| <= eps * sqrt(|a_pp a_qq|) (the relative criterion of
- * Demmel and Veselic 1992) or when a_pq is below eps^2 ||A||_F, which cannot change the
- * result at double precision; the sweeps stop when a whole sweep skips every pair.
+ * Demmel and Veselic 1992, SIAM J. Matrix Anal. Appl. 13) or when a_pq is below
+ * eps^2 ||A||_F, which cannot change the result at double precision; the sweeps stop when a
+ * whole sweep skips every pair.
  * Cost O(n^3) per sweep, typically 6-10 sweeps; meant for n up to a few hundred.
  */
 export function symmetricEigen(matrix: Float64Array, n: number): SymmetricEigen {

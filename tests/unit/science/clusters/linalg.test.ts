@@ -31,7 +31,7 @@ function maxOrthonormalityError(vectors: Float64Array[]): number {
   return worst;
 }
 
-describe('symmetricEigen (cyclic Jacobi, Golub and Van Loan algorithm 8.5.3)', () => {
+describe('symmetricEigen (cyclic Jacobi; source: Golub and Van Loan, Matrix Computations)', () => {
   it('finds the hand-worked eigenpairs of [[2, 1], [1, 2]]: 3 along (1, 1)/sqrt 2, 1 along (1, -1)/sqrt 2', () => {
     const { values, vectors } = symmetricEigen(Float64Array.of(2, 1, 1, 2), 2);
     expect(values[0]).toBeCloseTo(3, 14);
