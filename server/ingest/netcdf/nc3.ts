@@ -80,7 +80,10 @@ class Cursor {
   name(what: string): string {
     const n = this.count(`length of ${what}`, 1);
     if (n === 0) throw new IngestError(WHERE, `${what} is empty`);
-    return this.bytes(n, what).toString('utf8');
+    const name = this.bytes(n, what).toString('utf8');
+    // NetCDF names are UTF-8 without control characters; anything else is a damaged header
+    if (/[\u0000-\u001f\u007f\ufffd]/.test(name)) throw new IngestError(WHERE, `${what} is not a valid name (${JSON.stringify(name.slice(0, 40))})`);
+    return name;
   }
 }
 
