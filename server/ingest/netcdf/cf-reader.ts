@@ -28,19 +28,20 @@ const REQUIRED: CanonicalVariable[] = ['z', 't'];
 /** Roles of a variable's dimensions, or the reason it cannot be a field on a regular grid. */
 function rolesOf(src: NcSource, v: NcVariable, kinds: Map<string, AxisKind | null>): Role[] | string {
   const roles: Role[] = [];
+  let problem: string | null = null;
   for (let d = 0; d < v.dims.length; d++) {
     const dim = v.dims[d];
     if (!kinds.has(dim)) kinds.set(dim, classifyDimension(src, dim));
     const kind = kinds.get(dim) ?? null;
-    if (kind === null && v.shape[d] !== 1) return `dimension ${dim} (length ${v.shape[d]}) is not a latitude, longitude, pressure, time or member axis`;
-    if (kind !== null && roles.includes(kind)) return `two ${kind} dimensions`;
+    if (kind === null && v.shape[d] !== 1) problem ??= `dimension ${dim} (length ${v.shape[d]}) is not a latitude, longitude, pressure, time or member axis`;
+    if (kind !== null && roles.includes(kind)) problem ??= `two ${kind} dimensions`;
     roles.push(kind ?? 'singleton');
   }
   if (!roles.includes('lat') || !roles.includes('lon')) {
     refuseCurvilinear(src, v);
-    return `no latitude/longitude axis among its dimensions (${v.dims.join(', ') || 'none'})`;
+    return `no latitude/longitude axis among its dimensions (${v.dims.join(', ') || 'none'})${problem ? `; ${problem}` : ''}`;
   }
-  return roles;
+  return problem ?? roles;
 }
 
 /** 2-D latitude/longitude (curvilinear or rotated grids) is refused outright. */
