@@ -288,7 +288,7 @@ export class Nc3Source implements NcSource {
     const where = `variable ${v.name}`;
     let r = 0;
     while (r < nRuns) {
-      if (runBytes >= WINDOW_BYTES) {
+      if (runBytes >= WINDOW_BYTES || nRuns === 1) {
         await readExactly(this.fh, out, outOffset + r * runBytes, runBytes, offsets[r], where);
         r++;
         continue;

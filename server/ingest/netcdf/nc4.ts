@@ -8,7 +8,7 @@
  * attribute says "This is a netCDF dimension but not a netCDF variable".
  */
 import { resolve } from 'node:path';
-import h5wasm, { type Dataset, type File as H5File } from 'h5wasm/node';
+import type { Dataset, File as H5File } from 'h5wasm/node';
 import { IngestError } from '../canonical.ts';
 import type { AttrValue, NcSource, NcType, NcVariable, NumericArray } from './source.ts';
 
@@ -18,14 +18,23 @@ const NOT_A_VARIABLE = 'This is a netCDF dimension but not a netCDF variable';
 const INTERNAL_ATTRS = new Set(['DIMENSION_LIST', 'REFERENCE_LIST', 'CLASS', 'NAME', '_Netcdf4Coordinates', '_Netcdf4Dimid', '_NCProperties', '_nc3_strict', '_SuperblockVersion', '_IsNetcdf4']);
 const NON_COORD_PREFIX = '_nc4_non_coord_';
 
-let ready: Promise<void> | null = null;
+type H5 = (typeof import('h5wasm/node'))['default'];
+let loading: Promise<H5> | null = null;
+let h5wasm: H5;
 
-/** Loads the wasm module once and makes HDF5 errors throw (they print to stderr otherwise). */
-function h5Ready(): Promise<void> {
-  ready ??= h5wasm.ready.then((module) => {
+/**
+ * Loads the wasm module once, on the first NetCDF-4 file (importing it costs tens of MB, and
+ * several hundred MB when run through tsx), and makes HDF5 errors throw: by default they print
+ * to stderr and the call returns an invalid id.
+ */
+function h5Ready(): Promise<H5> {
+  loading ??= import('h5wasm/node').then(async ({ default: lib }) => {
+    const module = await lib.ready;
     module.activate_throwing_error_handler();
+    h5wasm = lib;
+    return lib;
   });
-  return ready;
+  return loading;
 }
 
 interface Nc4Variable extends NcVariable {
