@@ -119,13 +119,15 @@ export function unpackerFor(v: NcVariable): Unpacker {
   const missing = [...(fill ?? (DEFAULT_FILL[v.type] !== undefined ? [DEFAULT_FILL[v.type]!] : [])), ...(numberAttr(v.attrs, 'missing_value') ?? [])];
   // float variables compare against the float32 rounding of a double attribute
   const all = v.type === 'float' ? [...missing, ...missing.map(Math.fround)] : missing;
-  const range = numberAttr(v.attrs, 'valid_range');
+  // valid_range may be given in packed or in physical units (CF 8.1); trust it only unpacked
+  const packed = numberAttr(v.attrs, 'scale_factor') !== null || numberAttr(v.attrs, 'add_offset') !== null;
+  const range = packed ? null : numberAttr(v.attrs, 'valid_range');
   return {
     missing: all,
     scale: numberAttr(v.attrs, 'scale_factor')?.[0] ?? 1,
     offset: numberAttr(v.attrs, 'add_offset')?.[0] ?? 0,
-    validMin: range?.[0] ?? numberAttr(v.attrs, 'valid_min')?.[0] ?? -Infinity,
-    validMax: range?.[1] ?? numberAttr(v.attrs, 'valid_max')?.[0] ?? Infinity,
+    validMin: packed ? -Infinity : (range?.[0] ?? numberAttr(v.attrs, 'valid_min')?.[0] ?? -Infinity),
+    validMax: packed ? Infinity : (range?.[1] ?? numberAttr(v.attrs, 'valid_max')?.[0] ?? Infinity),
   };
 }
 
