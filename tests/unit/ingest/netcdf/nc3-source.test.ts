@@ -89,7 +89,7 @@ describe.each(['nc3', 'nc6'] as NcKind[])('Nc3Source (%s)', (kind) => {
       expect(src.dims.get('time')).toBe(2);
       const t = src.variables.get('t')!;
       expect(t.shape).toEqual([2, 2, 3, 3, 4]);
-      const last = Array.from(await src.read(t, [1, 1, 2, 2, 3], [1, 1, 1, 1, 1]));
+      const last = Array.from(await src.read(t, [1, 1, 2, 2, 3], [1, 1, 1, 1, 1]), Number);
       expect(last[0]).toBeCloseTo(ncdumpValues(writeNetcdf(smallRun(), dir, `stream-ref-${kind}`, kind), 't').at(-1) as number, 4);
     } finally {
       await src.close();
