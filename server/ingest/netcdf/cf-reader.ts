@@ -132,10 +132,10 @@ export async function openCf(src: NcSource): Promise<RunReader> {
   const dimOf = (roles: Role[], v: NcVariable, role: Role) => v.dims[roles.indexOf(role)];
   const latDim = dimOf(z.roles, z.c.variable, 'lat');
   const lonDim = dimOf(z.roles, z.c.variable, 'lon');
-  const lat: MappedAxis = mapLatitude(latDim, await axisValues(src, latDim));
-  const lon: MappedAxis = mapLongitude(lonDim, await axisValues(src, lonDim));
   const latRaw = await axisValues(src, latDim);
   const lonRaw = await axisValues(src, lonDim);
+  const lat: MappedAxis = mapLatitude(latDim, latRaw);
+  const lon: MappedAxis = mapLongitude(lonDim, lonRaw);
 
   const reference = await forecastReference(src);
   const validTimes: number[] = [];

@@ -108,6 +108,8 @@ const DEFAULT_FILL: Partial<Record<NcType, number>> = {
 /** Turns packed stored values into physical values: missing -> NaN, then scale and offset. */
 export interface Unpacker {
   missing: number[];
+  /** NUG `_Unsigned = "true"`: integers stored signed but meant unsigned; 2^bits to add to negatives, else 0 */
+  unsignedWrap: number;
   scale: number;
   offset: number;
   validMin: number;
@@ -122,8 +124,11 @@ export function unpackerFor(v: NcVariable): Unpacker {
   // valid_range may be given in packed or in physical units (CF 8.1); trust it only unpacked
   const packed = numberAttr(v.attrs, 'scale_factor') !== null || numberAttr(v.attrs, 'add_offset') !== null;
   const range = packed ? null : numberAttr(v.attrs, 'valid_range');
+  const bits: Partial<Record<NcType, number>> = { byte: 8, short: 16, int: 32 };
+  const unsigned = textAttr(v.attrs, '_Unsigned')?.toLowerCase() === 'true' && bits[v.type] !== undefined;
   return {
     missing: all,
+    unsignedWrap: unsigned ? 2 ** bits[v.type]! : 0,
     scale: numberAttr(v.attrs, 'scale_factor')?.[0] ?? 1,
     offset: numberAttr(v.attrs, 'add_offset')?.[0] ?? 0,
     validMin: packed ? -Infinity : (range?.[0] ?? numberAttr(v.attrs, 'valid_min')?.[0] ?? -Infinity),
@@ -142,6 +147,6 @@ export function makeValueReader(raw: NumericArray, u: Unpacker, conv: Conversion
     const x = isBig ? Number(raw[i]) : (raw[i] as number);
     if (x !== x || x === m0 || x < u.validMin || x > u.validMax) return NaN;
     if (checkOthers && u.missing.includes(x)) return NaN;
-    return x * mul + add;
+    return (x < 0 && u.unsignedWrap ? x + u.unsignedWrap : x) * mul + add;
   };
 }
