@@ -110,3 +110,44 @@ describe('packed unsigned bytes (_Unsigned = "true") and valid_range', () => {
     }
   });
 });
+
+describe('a forecast_period (step) axis with a scalar forecast_reference_time', () => {
+  const dir = tempDir();
+  afterAll(() => fs.rmSync(dir, { recursive: true, force: true }));
+
+  it('gives the reference time from the scalar and the steps from the period axis', async () => {
+    const n = 3 * 2 * 2 * 2 * 2;
+    const field = (base: number) => Array.from({ length: n }, (_, i) => base + i);
+    const dims = ['number', 'step', 'isobaricInhPa', 'latitude', 'longitude'];
+    const file = writeNetcdf(
+      {
+        dims: { number: 3, step: 2, isobaricInhPa: 2, latitude: 2, longitude: 2 },
+        vars: [
+          { name: 'number', type: 'int', dims: ['number'], attrs: { standard_name: 'realization' }, values: [0, 1, 2] },
+          { name: 'step', type: 'double', dims: ['step'], attrs: { standard_name: 'forecast_period', units: 'hours' }, values: [24, 48] },
+          { name: 'time', type: 'int', dims: [], attrs: { standard_name: 'forecast_reference_time', units: 'seconds since 1970-01-01T00:00:00' }, values: [Date.UTC(2026, 11, 1, 12) / 1000] },
+          { name: 'isobaricInhPa', type: 'double', dims: ['isobaricInhPa'], attrs: { units: 'hPa', standard_name: 'air_pressure' }, values: [850, 500] },
+          { name: 'latitude', type: 'double', dims: ['latitude'], attrs: { units: 'degrees_north' }, values: [10, 0] },
+          { name: 'longitude', type: 'double', dims: ['longitude'], attrs: { units: 'degrees_east' }, values: [0, 5] },
+          { name: 'z', type: 'float', dims, attrs: { units: 'm**2 s**-2', standard_name: 'geopotential' }, values: field(1000) },
+          { name: 't', type: 'float', dims, attrs: { units: 'K', standard_name: 'air_temperature' }, values: field(250) },
+        ],
+      },
+      dir,
+      'period',
+      'nc4',
+    );
+    const reader = await openRun(file);
+    try {
+      expect(reader.info.referenceTime).toBe('2026-12-01T12:00:00Z');
+      expect(reader.info.steps).toEqual([24, 48]);
+      expect(reader.info.members).toEqual([0, 1, 2]);
+      expect(reader.info.isEnsemble).toBe(true);
+      const z = await reader.readField('z', 2, 48);
+      // file [number 2][step 1][850 hPa][lat 10][lon 0] = 1000 + ((2*2+1)*2+0)*4 = 1040, at canonical [0][lat 10 = row 1][0]
+      expect(z[1 * 2 + 0]).toBe(1040);
+    } finally {
+      await reader.close();
+    }
+  });
+});
