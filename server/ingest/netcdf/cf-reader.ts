@@ -120,38 +120,35 @@ async function scalarTime(src: NcSource): Promise<number | null> {
   return values.length ? epochMs + values[0] * hours * 3600e3 : null;
 }
 
-export async function openCf(src: NcSource): Promise<RunReader> {
-  const { plans: chosen, reasons } = pick(src);
-  for (const name of REQUIRED) {
-    if (!chosen.has(name)) {
-      const what = name === 'z' ? 'geopotential (standard_name geopotential or geopotential_height, or a variable z / gh)' : 'temperature (standard_name air_temperature, or a variable t)';
-      throw new IngestError(`variable ${name}`, `missing ${what}${reasons.has(name) ? `; found ${reasons.get(name)}` : ''}`);
-    }
-  }
-  const z = chosen.get('z')!;
-  const dimOf = (roles: Role[], v: NcVariable, role: Role) => v.dims[roles.indexOf(role)];
-  const latDim = dimOf(z.roles, z.c.variable, 'lat');
-  const lonDim = dimOf(z.roles, z.c.variable, 'lon');
-  const latRaw = await axisValues(src, latDim);
-  const lonRaw = await axisValues(src, lonDim);
-  const lat: MappedAxis = mapLatitude(latDim, latRaw);
-  const lon: MappedAxis = mapLongitude(lonDim, lonRaw);
+type Chosen = Map<CanonicalVariable, { c: Candidate; roles: Role[] }>;
 
-  const reference = await forecastReference(src);
-  const validTimes: number[] = [];
+const dimOf = (roles: Role[], v: NcVariable, role: Role) => v.dims[roles.indexOf(role)];
+const timeRoleOf = (roles: Role[]) => (roles.includes('time') ? 'time' : roles.includes('period') ? 'period' : null);
+
+function requireCore(chosen: Chosen, reasons: Map<CanonicalVariable, string>) {
+  for (const name of REQUIRED) {
+    if (chosen.has(name)) continue;
+    const what = name === 'z' ? 'geopotential (standard_name geopotential or geopotential_height, or a variable z / gh)' : 'temperature (standard_name air_temperature, or a variable t)';
+    throw new IngestError(`variable ${name}`, `missing ${what}${reasons.has(name) ? `; found ${reasons.get(name)}` : ''}`);
+  }
+}
+
+/** Per-variable plans: same grid as geopotential, own pressure levels, own time axis. */
+async function buildPlans(src: NcSource, chosen: Chosen, grid: { latDim: string; lonDim: string; latRaw: Float64Array; lonRaw: Float64Array; ref: string }) {
   const plans = new Map<CanonicalVariable, Plan>();
   const timeCache = new Map<string, Float64Array>();
+  const validTimes: number[] = [];
   for (const [name, { c, roles }] of chosen) {
     const v = c.variable;
-    for (const [role, raw] of [['lat', latRaw], ['lon', lonRaw]] as const) {
+    for (const [role, axisDim, raw] of [['lat', grid.latDim, grid.latRaw], ['lon', grid.lonDim, grid.lonRaw]] as const) {
       const dim = dimOf(roles, v, role);
-      if (dim !== (role === 'lat' ? latDim : lonDim) && !sameValues(await axisValues(src, dim), raw)) {
-        throw new IngestError(`variable ${v.name}`, `its ${role === 'lat' ? 'latitude' : 'longitude'} axis ${dim} differs from ${role === 'lat' ? latDim : lonDim} used by ${z.c.variable.name}: all fields must share one grid`);
+      if (dim !== axisDim && !sameValues(await axisValues(src, dim), raw)) {
+        throw new IngestError(`variable ${v.name}`, `its ${role === 'lat' ? 'latitude' : 'longitude'} axis ${dim} differs from ${axisDim} used by ${grid.ref}: all fields must share one grid`);
       }
     }
     const levelDim = roles.includes('level') ? dimOf(roles, v, 'level') : null;
     const levelsPa = levelDim ? levelsInPa(levelDim, coordinateVariable(src, levelDim), await axisValues(src, levelDim)) : null;
-    const timeRole = roles.includes('time') ? 'time' : roles.includes('period') ? 'period' : null;
+    const timeRole = timeRoleOf(roles);
     if (timeRole) {
       const dim = dimOf(roles, v, timeRole);
       if (!timeCache.has(dim)) timeCache.set(dim, await timeAxis(src, dim, timeRole));
@@ -159,45 +156,75 @@ export async function openCf(src: NcSource): Promise<RunReader> {
     }
     plans.set(name, { candidate: c, roles, conv: conversionFor(c), unpack: unpackerFor(v), levelsPa, levelIndex: null, stepIndex: null, memberIndex: null });
   }
+  return { plans, timeCache, validTimes };
+}
 
+/** Reference time, and each variable's steps (hours after it). */
+async function assignSteps(src: NcSource, plans: Map<CanonicalVariable, Plan>, timeCache: Map<string, Float64Array>, validTimes: number[]) {
+  const reference = await forecastReference(src);
   const scalar = validTimes.length === 0 ? await scalarTime(src) : null;
   const refMs = reference ?? (validTimes.length > 0 ? Math.min(...validTimes) : scalar);
   if (refMs === null || !Number.isFinite(refMs)) {
     throw new IngestError('time', 'no time coordinate: expected a time dimension with units "hours since YYYY-MM-DD HH:MM:SS", a scalar time variable, or a forecast_reference_time variable');
   }
   const steps = new Set<number>();
+  for (const plan of plans.values()) {
+    const v = plan.candidate.variable;
+    const timeRole = timeRoleOf(plan.roles);
+    if (!timeRole) {
+      steps.add(key(scalar !== null ? (scalar - refMs) / 3600e3 : 0));
+      continue;
+    }
+    if (timeRole === 'period' && reference === null) throw new IngestError(`variable ${v.name}`, 'a forecast_period axis needs a forecast_reference_time variable');
+    const values = timeCache.get(dimOf(plan.roles, v, timeRole))!;
+    plan.stepIndex = new Map(Array.from(values, (x, i) => [key(timeRole === 'time' ? (x - refMs) / 3600e3 : x), i]));
+    for (const s of plan.stepIndex.keys()) steps.add(s);
+  }
+  return { refMs, steps: [...steps].sort((a, b) => a - b) };
+}
+
+/** Ensemble member numbers (the member coordinate's values, else 0..n-1). */
+async function assignMembers(src: NcSource, plans: Map<CanonicalVariable, Plan>) {
   const members = new Set<number>();
   let isEnsemble = false;
   for (const plan of plans.values()) {
-    const { roles, candidate } = plan;
-    const v = candidate.variable;
-    const timeRole = roles.includes('time') ? 'time' : roles.includes('period') ? 'period' : null;
-    if (timeRole) {
-      if (timeRole === 'period' && reference === null) throw new IngestError(`variable ${v.name}`, 'a forecast_period axis needs a forecast_reference_time variable');
-      const values = timeCache.get(dimOf(roles, v, timeRole))!;
-      plan.stepIndex = new Map(Array.from(values, (x, i) => [key(timeRole === 'time' ? (x - refMs) / 3600e3 : x), i]));
-      for (const s of plan.stepIndex.keys()) steps.add(s);
-    } else {
-      steps.add(key(scalar !== null ? (scalar - refMs) / 3600e3 : 0));
-    }
-    if (roles.includes('member')) {
-      isEnsemble = true;
-      const dim = dimOf(roles, v, 'member');
-      const cv = coordinateVariable(src, dim);
-      const numbers = cv ? Array.from(await readCoordinate(src, cv), Math.round) : Array.from({ length: src.dims.get(dim) ?? 0 }, (_, i) => i);
-      plan.memberIndex = new Map(numbers.map((m, i) => [m, i]));
-      numbers.forEach((m) => members.add(m));
-    }
+    if (!plan.roles.includes('member')) continue;
+    isEnsemble = true;
+    const dim = dimOf(plan.roles, plan.candidate.variable, 'member');
+    const cv = coordinateVariable(src, dim);
+    const numbers = cv ? Array.from(await readCoordinate(src, cv), Math.round) : Array.from({ length: src.dims.get(dim) ?? 0 }, (_, i) => i);
+    plan.memberIndex = new Map(numbers.map((m, i) => [m, i]));
+    numbers.forEach((m) => members.add(m));
   }
   if (members.size === 0) members.add(0);
+  return { isEnsemble, members: [...members].sort((a, b) => a - b) };
+}
 
+/** The union of all pressure levels, bottom to top; each variable maps onto it. */
+function assignLevels(plans: Map<CanonicalVariable, Plan>): Float64Array {
   const levelSet = new Set<number>();
   for (const plan of plans.values()) plan.levelsPa?.forEach((p) => levelSet.add(p));
   const levels = Float64Array.from([...levelSet].sort((a, b) => b - a));
   for (const plan of plans.values()) {
     if (plan.levelsPa) plan.levelIndex = Int32Array.from(levels, (p) => plan.levelsPa!.indexOf(p));
   }
+  return levels;
+}
 
+export async function openCf(src: NcSource): Promise<RunReader> {
+  const { plans: chosen, reasons } = pick(src);
+  requireCore(chosen, reasons);
+  const z = chosen.get('z')!;
+  const latDim = dimOf(z.roles, z.c.variable, 'lat');
+  const lonDim = dimOf(z.roles, z.c.variable, 'lon');
+  const latRaw = await axisValues(src, latDim);
+  const lonRaw = await axisValues(src, lonDim);
+  const lat = mapLatitude(latDim, latRaw);
+  const lon = mapLongitude(lonDim, lonRaw);
+  const { plans, timeCache, validTimes } = await buildPlans(src, chosen, { latDim, lonDim, latRaw, lonRaw, ref: z.c.variable.name });
+  const { refMs, steps } = await assignSteps(src, plans, timeCache, validTimes);
+  const { isEnsemble, members } = await assignMembers(src, plans);
+  const levels = assignLevels(plans);
   const variables: VariableInfo[] = [...plans.entries()].map(([name, plan]) => ({
     name,
     sourceName: plan.candidate.variable.name,
@@ -208,8 +235,8 @@ export async function openCf(src: NcSource): Promise<RunReader> {
     format: src.format,
     model: model ? model.slice(0, 200) : null,
     referenceTime: isoTime(refMs),
-    steps: [...steps].sort((a, b) => a - b),
-    members: [...members].sort((a, b) => a - b),
+    steps,
+    members,
     isEnsemble,
     axes: { lat: lat.values, lon: lon.values, levels },
     variables,
