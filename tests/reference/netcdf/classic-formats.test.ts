@@ -2,6 +2,7 @@
  * NetCDF-3 reader against the netCDF tools: files written by ncgen (CDF-1 with `-k nc3`, CDF-2
  * with `-k nc6`), every canonical value compared with `ncdump -v VAR -p 9,17`
  * (reference tool: netCDF ncdump, Debian netcdf-bin) after the expected orientation change.
+ * Source of every expected value: the stored values ncdump prints, unpacked with the CF rules.
  */
 import fs from 'node:fs';
 import { afterAll, describe, expect, it } from 'vitest';
