@@ -17,6 +17,8 @@ const NOT_A_VARIABLE = 'This is a netCDF dimension but not a netCDF variable';
 /** HDF5 / netCDF bookkeeping attributes, not CF metadata */
 const INTERNAL_ATTRS = new Set(['DIMENSION_LIST', 'REFERENCE_LIST', 'CLASS', 'NAME', '_Netcdf4Coordinates', '_Netcdf4Dimid', '_NCProperties', '_nc3_strict', '_SuperblockVersion', '_IsNetcdf4']);
 const NON_COORD_PREFIX = '_nc4_non_coord_';
+/** A single field larger than this is not a pressure-level model field. */
+const MAX_SLAB_BYTES = 1 << 30;
 
 type H5 = (typeof import('h5wasm/node'))['default'];
 let loading: Promise<H5> | null = null;
@@ -144,6 +146,8 @@ export class Nc4Source implements NcSource {
     try {
       const ds = this.file.get(v.path.slice(1));
       if (!(ds instanceof h5wasm.Dataset)) throw new IngestError(where, 'the dataset has disappeared');
+      const bytes = count.reduce((a, b) => a * b, 1) * ds.metadata.size;
+      if (bytes > MAX_SLAB_BYTES) throw new IngestError(where, `a slab of ${bytes} bytes is too large for one field (dimensions ${v.dims.join(' x ')} = ${v.shape.join(' x ')})`);
       const data = v.shape.length === 0 ? ds.value : ds.slice(start.map((s, d) => [s, s + count[d]]));
       if (typeof data === 'number') return new Float64Array([data]);
       if (typeof data === 'bigint') return new Float64Array([Number(data)]);
