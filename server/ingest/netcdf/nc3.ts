@@ -82,6 +82,7 @@ class Cursor {
     if (n === 0) throw new IngestError(WHERE, `${what} is empty`);
     const name = this.bytes(n, what).toString('utf8');
     // NetCDF names are UTF-8 without control characters; anything else is a damaged header
+    // eslint-disable-next-line no-control-regex
     if (/[\u0000-\u001f\u007f\ufffd]/.test(name)) throw new IngestError(WHERE, `${what} is not a valid name (${JSON.stringify(name.slice(0, 40))})`);
     return name;
   }

@@ -11,6 +11,7 @@ import { resolve } from 'node:path';
 import type { Dataset, File as H5File } from 'h5wasm/node';
 import { IngestError } from '../canonical.ts';
 import type { AttrValue, NcSource, NcType, NcVariable, NumericArray } from './source.ts';
+import type H5Module from 'h5wasm/node';
 
 const WHERE = 'NetCDF-4';
 const NOT_A_VARIABLE = 'This is a netCDF dimension but not a netCDF variable';
@@ -20,7 +21,7 @@ const NON_COORD_PREFIX = '_nc4_non_coord_';
 /** A single field larger than this is not a pressure-level model field. */
 const MAX_SLAB_BYTES = 1 << 30;
 
-type H5 = (typeof import('h5wasm/node'))['default'];
+type H5 = typeof H5Module;
 let loading: Promise<H5> | null = null;
 let h5wasm: H5;
 
