@@ -93,7 +93,12 @@ function classify(raw: RawField, gridCache: Map<number, { def: GridDef; axes: Ca
     if (!(product.level1Value > 0)) throw new IngestError(where, `isobaric level value ${product.level1Value} Pa is not a pressure`);
     level = Math.round(product.level1Value * 1000) / 1000;
   }
-  return { raw, param, grid: grid.def, packing: parsePacking(raw.sec5), member: product.member ?? 0, level, start, step };
+  const packing = parsePacking(raw.sec5);
+  const npts = grid.def.ni * grid.def.nj;
+  if (raw.bitmap ? packing.count > npts : packing.count !== npts) {
+    throw new IngestError(`message ${raw.message} section 5`, `${packing.count} packed values for ${npts} grid points${raw.bitmap ? ' (more values than points)' : ' and no bitmap'}`);
+  }
+  return { raw, param, grid: grid.def, packing, member: product.member ?? 0, level, start, step };
 }
 
 function buildIndex(raws: RawField[]): Grib2Index {
@@ -233,16 +238,11 @@ export class Grib2Reader implements RunReader {
     const factor = f.param.factor;
     if (f.raw.bitmap) {
       const bits = await this.readBytes(f.raw.bitmap.offset, f.raw.bitmap.length);
+      let present = 0;
+      for (let n = 0; n < npts; n++) present += (bits[n >>> 3] >>> (7 - (n & 7))) & 1;
+      if (present !== values.length) throw new IngestError(where, `bitmap marks ${present} points present, section 5 declares ${values.length} values`);
       let k = 0;
-      for (let n = 0; n < npts; n++) {
-        if ((bits[n >>> 3] >>> (7 - (n & 7))) & 1) {
-          if (k >= values.length) throw new IngestError(where, `bitmap marks more points present than the ${values.length} values of section 5`);
-          scan[n] = values[k++] * factor;
-        } else {
-          scan[n] = NaN;
-        }
-      }
-      if (k !== values.length) throw new IngestError(where, `bitmap marks ${k} points present, section 5 declares ${values.length} values`);
+      for (let n = 0; n < npts; n++) scan[n] = (bits[n >>> 3] >>> (7 - (n & 7))) & 1 ? values[k++] * factor : NaN;
     } else {
       if (values.length !== npts) throw new IngestError(where, `${values.length} values for ${npts} grid points and no bitmap`);
       if (factor === 1) for (let n = 0; n < npts; n++) scan[n] = values[n];

@@ -11,7 +11,7 @@ import { u32, unpackBits } from './bits.ts';
 const SIGNATURE = [0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a];
 const CHANNELS: Record<number, number> = { 0: 1, 2: 3, 4: 2, 6: 4 };
 
-export function decodePng(png: Uint8Array, nbits: number, where: string): Float64Array {
+export function decodePng(png: Uint8Array, nbits: number, count: number, where: string): Float64Array {
   if (png.length < 33 || SIGNATURE.some((b, i) => png[i] !== b)) throw new IngestError(where, 'section 7 does not hold a PNG image');
   let o = 8;
   let width = 0;
@@ -44,7 +44,7 @@ export function decodePng(png: Uint8Array, nbits: number, where: string): Float6
   }
   const bitsPerPixel = channels * depth;
   if (bitsPerPixel < nbits) throw new IngestError(where, `PNG holds ${bitsPerPixel} bits per pixel, section 5 declares ${nbits}`);
-  if (width * height > 100_000_000) throw new IngestError(where, `absurd PNG size ${width} x ${height}`);
+  if (width * height !== count) throw new IngestError(where, `PNG is ${width} x ${height} pixels, section 5 declares ${count} values`);
   const rowBytes = Math.ceil((width * bitsPerPixel) / 8);
   let raw: Buffer;
   try {

@@ -7,6 +7,9 @@
 import { IngestError } from '../canonical.ts';
 import { allOnes, ieee32, signMag, u16, u32, u8 } from './bits.ts';
 
+/** A 0.05-degree global grid has about 26 million points; more than this is a corrupt header. */
+export const MAX_POINTS = 30_000_000;
+
 export interface GridDef {
   template: number;
   ni: number;
@@ -85,7 +88,7 @@ export function parseGrid(sec: Uint8Array): GridDef {
   if (ni < 1 || nj < 1 || ni * nj !== npts) {
     throw new IngestError(where, `Ni x Nj = ${ni} x ${nj} does not match the ${npts} data points declared`);
   }
-  if (npts > 100_000_000) throw new IngestError(where, `absurd grid size ${npts} points`);
+  if (npts > MAX_POINTS) throw new IngestError(where, `absurd grid size ${npts} points (at most ${MAX_POINTS})`);
   const basic = u32(sec, 38);
   const sub = u32(sec, 42);
   const unit = basic === 0 || basic === 0xffffffff || sub === 0 || sub === 0xffffffff ? 1e-6 : basic / sub;
@@ -177,7 +180,7 @@ export function parsePacking(sec: Uint8Array): PackingDef {
     extraOctets: 0,
     precision: 0,
   };
-  if (d.count > 100_000_000) throw new IngestError(where, `absurd number of values ${d.count}`);
+  if (d.count > MAX_POINTS) throw new IngestError(where, `absurd number of values ${d.count} (at most ${MAX_POINTS})`);
   if (template === 4) {
     need(sec, 12, where);
     d.precision = sec[11];

@@ -34,7 +34,7 @@ export async function unpackValues(p: PackingDef, data: Uint8Array): Promise<Flo
       const out = new Float64Array(p.count);
       if (p.nbits > 0 && p.count > 0) {
         const payload = data.subarray(0, bytes);
-        const raw = p.template === 41 ? decodePng(payload, p.nbits, where) : await decodeJpeg2000(payload, where);
+        const raw = p.template === 41 ? decodePng(payload, p.nbits, p.count, where) : await decodeJpeg2000(payload, where);
         if (raw.length !== p.count) {
           throw new IngestError(where, `image holds ${raw.length} values, section 5 declares ${p.count}`);
         }
