@@ -31,8 +31,8 @@
  *   the first member): one line per grid point, "lat lon value" separated by single spaces,
  *   rows north to south, points west to east within a row, longitudes in -180..180, values
  *   in canonical units (z in m2 s-2, tcc as a fraction, tp in kg m-2 since the reference
- *   time), missing values as "nan". Numbers: shortest decimal form (lat/lon rounded to 1e-6,
- *   values to 8 significant digits).
+ *   time), missing values as "nan". Numbers in their shortest decimal form: lat/lon rounded to
+ *   1e-6, values the shortest decimal that reads back as the same 32-bit float (e.g. 2.44).
  *
  * Exit codes: 0 success; 1 the file cannot be read (one line on stderr, "inspect: MESSAGE");
  * 2 wrong arguments (one line on stderr).
@@ -133,6 +133,15 @@ function text(d: ReturnType<typeof describe>): string {
   return lines.join('\n');
 }
 
+/** The fewest significant digits that give back the same float32 (fields are Float32Array). */
+function shortestFloat32(x: number): string {
+  for (let p = 6; p < 9; p++) {
+    const s = x.toPrecision(p);
+    if (Math.fround(Number(s)) === x) return String(Number(s));
+  }
+  return String(Number(x.toPrecision(9)));
+}
+
 async function dump(reader: RunReader, spec: NonNullable<Args['dump']>, memberArg: number | null): Promise<string> {
   const { info } = reader;
   const v = info.variables.find((x) => x.name === spec.name);
@@ -158,7 +167,7 @@ async function dump(reader: RunReader, spec: NonNullable<Args['dump']>, memberAr
     const row = offset + j * nlon;
     for (let i = 0; i < nlon; i++) {
       const x = field[row + i];
-      out.push(`${lat} ${lon[i]} ${Number.isNaN(x) ? 'nan' : String(Number(x.toPrecision(8)))}`);
+      out.push(`${lat} ${lon[i]} ${Number.isNaN(x) ? 'nan' : shortestFloat32(x)}`);
     }
   }
   return out.join('\n');

@@ -9,6 +9,7 @@ import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { IngestError, openRun, type CanonicalVariable } from '../../../../server/ingest/index.ts';
 import { openGrib2 } from '../../../../server/ingest/grib2/index.ts';
+import { encodeComplex, encodePng } from '../../../reference/grib2/craft.ts';
 import { NI, NJ, fieldSections, message, ramp, sec1, sec3, sec4, sec5, sec6, sec7, sectionBoundaries, validFile, type BuiltField } from './build.ts';
 
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'liftwise-'));
@@ -158,6 +159,29 @@ describe('GRIB2 malformed-input corpus', () => {
     await expectIngestError(message([sec1(), sec3(), sec4(t), sec5(24, 16), sec6(), sec7(t.xs, 12)]), /need 48 octets, section 7 holds 36/);
   });
 
+  /** complex packing with spatial differencing and missing values, and PNG, for the flips */
+  function packedFile(): Uint8Array {
+    const scale = Uint8Array.of(0x43, 0x48, 0, 0, 0, 0, 0, 0); // R = 200, E = D = 0
+    const xs = ramp(5).map((x, k) => (k % 7 === 3 ? null : x));
+    const c = encodeComplex(xs, scale, { template: 3, order: 2, extraOctets: 2, management: 1, groupLength: 5 });
+    const png = encodePng(ramp(6), NI, NJ, 16, scale);
+    const r: BuiltField = { category: 1, number: 1, levelType: 100, levelPa: 70000, xs: [] };
+    const u: BuiltField = { category: 2, number: 2, levelType: 100, levelPa: 70000, xs: [] };
+    return Uint8Array.from([
+      ...message([sec1(), sec3(), sec4(r), Array.from(c.sec5), sec6(), Array.from(c.sec7)]),
+      ...message([sec1(), sec3(), sec4(u), Array.from(png.sec5), sec6(), Array.from(png.sec7)]),
+    ]);
+  }
+
+  it('the complex / PNG corpus file decodes undamaged', async () => {
+    const reader = await openGrib2(write(packedFile()));
+    const r = await reader.readField('r', 0, 0);
+    const u = await reader.readField('u', 0, 0);
+    expect(r.filter(Number.isNaN).length).toBe(ramp(5).filter((_, k) => k % 7 === 3).length);
+    expect(u[(NJ - 1) * NI]).toBe(200 + ramp(6)[0]);
+    await reader.close();
+  });
+
   it('a few hundred seeded random byte flips: an IngestError or a valid decode, never anything else', async () => {
     let seed = 20261202;
     const rand = () => {
@@ -166,8 +190,9 @@ describe('GRIB2 malformed-input corpus', () => {
     };
     let errors = 0;
     let decoded = 0;
+    const sources = [VALID, packedFile()];
     for (let trial = 0; trial < 400; trial++) {
-      const bytes = VALID.slice();
+      const bytes = sources[trial % 2].slice();
       const flips = 1 + Math.floor(rand() * 4);
       for (let f = 0; f < flips; f++) {
         const at = Math.floor(rand() * bytes.length);
