@@ -5,7 +5,7 @@
  */
 import { open, type FileHandle } from 'node:fs/promises';
 import { CANONICAL_VARIABLES, IngestError, type CanonicalVariable, type RunInfo, type RunReader, type VariableInfo } from '../canonical.ts';
-import { padded, u16 } from './bits.ts';
+import { PAD, u16, unpackScaled } from './bits.ts';
 import { canonicalAxes, sameGrid, toCanonical, type CanonicalGrid } from './grid.ts';
 import { centreName, hoursPerUnit, lookupParam, type ParamMapping } from './params.ts';
 import { ChunkReader, referenceTime, scanMessages, type RawField } from './scan.ts';
@@ -230,14 +230,25 @@ export class Grib2Reader implements RunReader {
 
   /** Decodes one field into canonical [lat][lon] order and canonical units. */
   async decode(f: Grib2Field): Promise<Float32Array> {
+    const payload = await this.readPayload(f);
+    const bits = f.raw.bitmap ? await this.readBytes(f.raw.bitmap.offset, f.raw.bitmap.length) : null;
+    return this.decodePayload(f, payload, bits);
+  }
+
+  /** Section 7 of a field, with the PAD zero octets the bit readers rely on. */
+  readPayload(f: Grib2Field): Promise<Uint8Array> {
+    return this.readBytes(f.raw.data.offset, f.raw.data.length, PAD);
+  }
+
+  /** Decoding proper, from section 7 (readPayload) and the bitmap octets already in memory. */
+  async decodePayload(f: Grib2Field, payload: Uint8Array, bits: Uint8Array | null): Promise<Float32Array> {
     const where = `message ${f.raw.message} data representation template 5.${f.packing.template}`;
-    const payload = padded(await this.readBytes(f.raw.data.offset, f.raw.data.length));
-    const values = await unpackValues(f.packing, payload);
     const npts = f.grid.ni * f.grid.nj;
+    if (f.packing.template === 0 && !bits && (f.grid.scanMode & 0xb0) === 0) return this.decodeSimpleRows(f, payload, where);
+    const values = await unpackValues(f.packing, payload);
     const scan = new Float32Array(npts);
     const factor = f.param.factor;
-    if (f.raw.bitmap) {
-      const bits = await this.readBytes(f.raw.bitmap.offset, f.raw.bitmap.length);
+    if (bits) {
       let present = 0;
       for (let n = 0; n < npts; n++) present += (bits[n >>> 3] >>> (7 - (n & 7))) & 1;
       if (present !== values.length) throw new IngestError(where, `bitmap marks ${present} points present, section 5 declares ${values.length} values`);
@@ -251,8 +262,29 @@ export class Grib2Reader implements RunReader {
     return toCanonical(scan, f.grid);
   }
 
-  private async readBytes(offset: number, length: number): Promise<Uint8Array> {
-    const buf = new Uint8Array(length);
+  /**
+   * The common case (simple packing, no bitmap, rows west to east) in one pass: each scan row
+   * is unpacked and scaled straight into its canonical row.
+   */
+  private decodeSimpleRows(f: Grib2Field, payload: Uint8Array, where: string): Float32Array {
+    const p = f.packing;
+    const { ni, nj } = f.grid;
+    if (p.nbits * p.count > (payload.length - PAD) * 8) {
+      throw new IngestError(where, `packed data need ${Math.ceil((p.nbits * p.count) / 8)} octets, section 7 holds ${payload.length - PAD}`);
+    }
+    const out = new Float32Array(ni * nj);
+    const jPos = (f.grid.scanMode & 0x40) !== 0;
+    const bs = 2 ** p.binaryScale;
+    const ds = 10 ** -p.decimalScale * f.param.factor;
+    for (let r = 0; r < nj; r++) {
+      const j = jPos ? r : nj - 1 - r;
+      unpackScaled(payload, r * ni * p.nbits, p.nbits, ni, out, j * ni, p.reference, bs, ds);
+    }
+    return out;
+  }
+
+  private async readBytes(offset: number, length: number, pad = 0): Promise<Uint8Array> {
+    const buf = new Uint8Array(length + pad);
     const { bytesRead } = await this.handle.read(buf, 0, length, offset);
     if (bytesRead !== length) throw new IngestError('file', `file shrank: ${bytesRead} of ${length} octets read at ${offset}`);
     return buf;
