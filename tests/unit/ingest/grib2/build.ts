@@ -10,7 +10,12 @@ export interface BuiltField {
   /** integers packed with simple packing; value = (R + X) with R = 200, E = D = 0 */
   xs: number[];
   bitmap?: boolean[];
+  /** forecast time, in `timeUnit` (Code table 4.4, default 1 = hour) */
   forecastHours?: number;
+  timeUnit?: number;
+  /** template 4.8 only: length of the accumulation in hours */
+  rangeHours?: number;
+  template?: number;
 }
 
 const be32 = (v: number) => [(v >>> 24) & 0xff, (v >>> 16) & 0xff, (v >>> 8) & 0xff, v & 0xff];
@@ -23,24 +28,28 @@ function section(num: number, body: number[]): number[] {
 export const NI = 6;
 export const NJ = 4;
 
-export function sec1(): number[] {
-  // centre 98, subcentre 0, tables 2/0, significance 1, 2026-12-01 00:00:00, status 0, type 1
-  return section(1, [...be16(98), ...be16(0), 2, 0, 1, ...be16(2026), 12, 1, 0, 0, 0, 0, 1]);
+export function sec1(hour = 0, centre = 98): number[] {
+  // subcentre 0, tables 2/0, significance 1, 2026-12-01 hour:00:00, status 0, type 1
+  return section(1, [...be16(centre), ...be16(0), 2, 0, 1, ...be16(2026), 12, 1, hour, 0, 0, 0, 1]);
 }
 
-export function sec3(template = 0, scanMode = 0): number[] {
-  const body = [0, ...be32(NI * NJ), 0, 0, ...be16(template)];
+export function sec3(template = 0, scanMode = 0, ni = NI): number[] {
+  const body = [0, ...be32(ni * NJ), 0, 0, ...be16(template)];
   // shape of earth 6, radius and axes missing-ish zeros
   body.push(6, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0);
-  body.push(...be32(NI), ...be32(NJ), ...be32(0), ...be32(0xffffffff));
+  body.push(...be32(ni), ...be32(NJ), ...be32(0), ...be32(0xffffffff));
   body.push(...be32(60_000_000), ...be32(350_000_000), 48, ...be32(54_000_000), ...be32(10_000_000));
   body.push(...be32(4_000_000), ...be32(2_000_000), scanMode);
   return section(3, body);
 }
 
 export function sec4(f: BuiltField, template = 0): number[] {
-  const body = [...be16(0), ...be16(template), f.category, f.number, 2, 0, 0, ...be16(0), 0, 1, ...be32(f.forecastHours ?? 0)];
+  const body = [...be16(0), ...be16(template), f.category, f.number, 2, 0, 0, ...be16(0), 0, f.timeUnit ?? 1, ...be32(f.forecastHours ?? 0)];
   body.push(f.levelType, 0, ...be32(f.levelPa), 255, 255, ...be32(0xffffffff));
+  if (template === 8) {
+    // end of the interval (not read), one time range: accumulation (1) over `rangeHours` hours
+    body.push(...be16(2026), 12, 1, 0, 0, 0, 1, ...be32(0), 1, 2, 1, ...be32(f.rangeHours ?? 0), 255, ...be32(0));
+  }
   return section(4, body);
 }
 
@@ -84,7 +93,7 @@ export function message(sections: number[][], discipline = 0, edition = 2): Uint
 
 export function fieldSections(f: BuiltField, nbits = 12): number[][] {
   const present = f.bitmap ? f.xs.filter((_, k) => f.bitmap![k]) : f.xs;
-  return [sec4(f), sec5(present.length, nbits), sec6(f.bitmap), sec7(present, nbits)];
+  return [sec4(f, f.template ?? 0), sec5(present.length, nbits), sec6(f.bitmap), sec7(present, nbits)];
 }
 
 export const ramp = (seed: number) => Array.from({ length: NI * NJ }, (_, k) => (k * 37 + seed * 11) % 4000);
