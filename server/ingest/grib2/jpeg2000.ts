@@ -44,6 +44,8 @@ export async function decodeJpeg2000(stream: Uint8Array, where: string): Promise
     try {
       decoder.decode();
     } catch (err) {
+      // an aborted wasm instance is not reusable: load a fresh one for the next field
+      modulePromise = null;
       throw new IngestError(where, `JPEG 2000 code stream does not decode (${err instanceof Error ? err.message : String(err)})`);
     }
     const info = decoder.getFrameInfo();

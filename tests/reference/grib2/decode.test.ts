@@ -4,7 +4,9 @@
  * run by ecCodes' own encoder (python3-eccodes) from its sample regular_ll_pl_grib2 /
  * regular_ll_sfc_grib2, one file per packing / scanning mode / product template.
  */
+import { spawnSync } from 'node:child_process';
 import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { IngestError, STANDARD_GRAVITY } from '../../../server/ingest/canonical.ts';
 import { openGrib2 } from '../../../server/ingest/grib2/index.ts';
@@ -195,6 +197,24 @@ describe.skipIf(missing !== null)('GRIB2 decoder vs reference tool: ecCodes grib
     expect(comparePlane(await reader.readField('t', 0, 0), reader.info.axes, flipped)).toBe(84);
     await reader.close();
   });
+
+  it('inspect --dump prints what grib_get_data prints (longitudes in -180..180, missing as nan)', () => {
+    const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../..');
+    const name = 'bitmap-grid_complex_spatial_differencing';
+    const r = spawnSync(process.execPath, ['--import', 'tsx', path.join(root, 'server/cli/liftwise.ts'), 'inspect', file(name), '--dump', 't:850:0'], { cwd: root, encoding: 'utf8' });
+    expect(r.stderr).toBe('');
+    const lines = r.stdout.trim().split('\n');
+    const ref = gribGetData(file(name))[0];
+    expect(lines).toHaveLength(ref.length);
+    // grib_get_data walks the file's scan order, north to south and west to east here: the dump's order
+    ref.forEach((p, k) => {
+      const [lat, lon, value] = lines[k].split(' ');
+      expect(Number(lat)).toBeCloseTo(p.lat, 6);
+      expect(Number(lon)).toBeCloseTo(p.lon >= 180 ? p.lon - 360 : p.lon, 6);
+      if (Number.isNaN(p.value)) expect(value).toBe('nan');
+      else expect(Math.abs(Number(value) - p.value)).toBeLessThanOrEqual(2e-7 * Math.abs(p.value));
+    });
+  }, 30_000);
 
   it('longitudes starting at 340 become -20 .. 24, contiguous', async () => {
     const reader = await openGrib2(file('simple-16'));
