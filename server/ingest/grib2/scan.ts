@@ -27,7 +27,8 @@ export interface RawField {
 }
 
 const MAX_HEADER_SECTION = 1 << 20;
-const CHUNK = 1 << 16;
+// headers of one message (sections 1-5 and the section 6/7 headers) fit in a few hundred octets
+const CHUNK = 4096;
 
 /** Serves small reads from one cached chunk of the file. */
 export class ChunkReader {
@@ -95,10 +96,6 @@ export async function scanMessages(reader: ChunkReader): Promise<RawField[]> {
 
 async function scanSections(reader: ChunkReader, offset: number, total: number, message: number, discipline: number, out: RawField[]): Promise<void> {
   const end = offset + total - 4;
-  const tail = await reader.read(end, 4);
-  if (tail[0] !== 0x37 || tail[1] !== 0x37 || tail[2] !== 0x37 || tail[3] !== 0x37) {
-    throw new IngestError(`message ${message} section 8`, 'end marker "7777" missing where the declared message length puts it');
-  }
   let pos = offset + 16;
   let prev = 0;
   let sec1: Uint8Array | null = null;
@@ -111,6 +108,10 @@ async function scanSections(reader: ChunkReader, offset: number, total: number, 
   while (true) {
     if (pos === end) {
       if (prev !== 7) throw new IngestError(`message ${message}`, `ends after section ${prev}, before any data section 7`);
+      const tail = await reader.read(end, 4);
+      if (tail[0] !== 0x37 || tail[1] !== 0x37 || tail[2] !== 0x37 || tail[3] !== 0x37) {
+        throw new IngestError(`message ${message} section 8`, 'end marker "7777" missing where the declared message length puts it');
+      }
       return;
     }
     if (end - pos < 5) throw new IngestError(`message ${message}`, `${end - pos} stray octets before the end marker`);
