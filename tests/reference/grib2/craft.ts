@@ -1,4 +1,7 @@
 /**
+ * Source of the layouts: WMO Manual on Codes, FM 92 GRIB edition 2, templates 5.2, 5.3, 5.41;
+ * PNG chunks and filters: the PNG specification (W3C / ISO 15948).
+ *
  * Hand-made GRIB2 pieces for what this ecCodes build does not write (complex packing with
  * spatial differencing of order 1 and 2, missing value management, PNG, several fields per
  * message). Built after the WMO FM 92 GRIB2 template layouts; every crafted message is then

@@ -1,4 +1,6 @@
 /**
+ * Source of the expected values: reference tool ecCodes grib_get_data (Debian libeccodes-tools).
+ *
  * Packings and structures this ecCodes build does not write: complex packing with spatial
  * differencing of order 1 and 2 (ecCodes 2.28 writes 5.3 with order 0), missing value
  * management inside complex packing, PNG (ecCodes' PNG encoder aborts here), several fields

@@ -1,5 +1,6 @@
 /**
  * Our GRIB2 decoder against ecCodes, point by point.
+ * Source of every expected value: the reference tool ecCodes grib_get_data.
  * Reference tool: ecCodes grib_get_data (Debian libeccodes-tools); files written in the test
  * run by ecCodes' own encoder (python3-eccodes) from its sample regular_ll_pl_grib2 /
  * regular_ll_sfc_grib2, one file per packing / scanning mode / product template.

@@ -1,4 +1,5 @@
 /**
+ * Source of the expected values in the GRIB2 reference tests: ecCodes.
  * Test helpers around the reference tool, ecCodes (Debian libeccodes-tools and
  * python3-eccodes): write GRIB2 files with ecCodes' encoder, read points back with
  * grib_get_data, and compare with our decoder's canonical fields.

@@ -1,5 +1,6 @@
-"""Writes GRIB2 test files with ecCodes (python3-eccodes), for the reference tests and the
-ingest benchmark. Reads a JSON spec on stdin:
+"""Source of the test files: ecCodes' own encoder and samples (the reference tool).
+Writes GRIB2 test files with ecCodes (python3-eccodes) for the reference tests.
+Reads a JSON spec on stdin:
   {"files": [{"out": PATH, "messages": [{"sample": "regular_ll_pl_grib2", "keys": [[KEY, VALUE], ...],
                               "values": [...] | null, "missing": NUMBER | null}]}, ...]}
 Keys are set in the order given (ecCodes needs grid before product before packing).
