@@ -11,7 +11,7 @@
 import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openGrib2 } from '../../../server/ingest/grib2/index.ts';
 import { buildMessage, encodeComplex, encodePng, scaleOctets, section, simpleIntegers, splitFile, splitMessage, type ComplexOptions } from './craft.ts';
 import { comparePlane, eccodesMissing, gribGetData, tempDir, writeGribFiles, type Key, type MessageSpec } from './eccodes.ts';
@@ -19,6 +19,9 @@ import { comparePlane, eccodesMissing, gribGetData, tempDir, writeGribFiles, typ
 const missing = eccodesMissing();
 const dir = missing ? '' : tempDir();
 const file = (name: string) => path.join(dir, `${name}.grib2`);
+afterAll(() => {
+  if (dir) fs.rmSync(dir, { recursive: true, force: true });
+});
 
 const grid: Key[] = [
   ['Ni', 15],

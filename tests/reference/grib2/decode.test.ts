@@ -6,9 +6,10 @@
  * regular_ll_sfc_grib2, one file per packing / scanning mode / product template.
  */
 import { spawnSync } from 'node:child_process';
+import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { IngestError, STANDARD_GRAVITY } from '../../../server/ingest/canonical.ts';
 import { openGrib2 } from '../../../server/ingest/grib2/index.ts';
 import { comparePlane, eccodesMissing, gribGetData, tempDir, writeGribFiles, type FileSpec, type Key, type MessageSpec } from './eccodes.ts';
@@ -16,6 +17,9 @@ import { comparePlane, eccodesMissing, gribGetData, tempDir, writeGribFiles, typ
 const missing = eccodesMissing();
 const dir = missing ? '' : tempDir();
 const file = (name: string) => path.join(dir, `${name}.grib2`);
+afterAll(() => {
+  if (dir) fs.rmSync(dir, { recursive: true, force: true });
+});
 
 interface Grid {
   ni: number;
