@@ -135,7 +135,6 @@ async function scanSections(reader: ChunkReader, offset: number, total: number, 
         if (len < 14) throw new IngestError(where, `length ${len} is shorter than the 14 octets before the grid template`);
         sec3 = await reader.copy(pos, len);
         sec3Offset = pos;
-        lastBitmap = null;
         break;
       case 4:
         if (len < 9) throw new IngestError(where, `length ${len} is shorter than the 9 octets before the product template`);
@@ -153,7 +152,9 @@ async function scanSections(reader: ChunkReader, offset: number, total: number, 
           if ((len - 6) * 8 < npts) throw new IngestError(where, `bitmap holds ${(len - 6) * 8} bits for ${npts} grid points`);
           bitmap = lastBitmap = { offset: pos + 6, length: len - 6 };
         } else if (indicator === 254) {
-          if (!lastBitmap) throw new IngestError(where, 'bitmap indicator 254 (previously defined bitmap) but no bitmap precedes it for this grid');
+          if (!lastBitmap) throw new IngestError(where, 'bitmap indicator 254 (previously defined bitmap) but no bitmap precedes it in this message');
+          const npts = u32(sec3!, 6);
+          if (lastBitmap.length * 8 < npts) throw new IngestError(where, `the previously defined bitmap holds ${lastBitmap.length * 8} bits for ${npts} grid points`);
           bitmap = lastBitmap;
         } else if (indicator === 255) {
           bitmap = null;
