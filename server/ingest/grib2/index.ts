@@ -101,6 +101,18 @@ function classify(raw: RawField, gridCache: Map<number, { def: GridDef; axes: Ca
   return { raw, param, grid: grid.def, packing, member: product.member ?? 0, level, start, step };
 }
 
+/** Prefixes template-level errors with the message they come from. */
+function withMessage<T>(message: number, fn: () => T): T {
+  try {
+    return fn();
+  } catch (err) {
+    if (err instanceof IngestError && !err.where.startsWith('message')) {
+      throw new IngestError(`message ${message} ${err.where}`, err.message.slice(err.where.length + 2));
+    }
+    throw err;
+  }
+}
+
 function buildIndex(raws: RawField[]): Grib2Index {
   const gridCache = new Map<number, { def: GridDef; axes: CanonicalGrid }>();
   const fields: Grib2Field[] = [];
@@ -109,7 +121,7 @@ function buildIndex(raws: RawField[]): Grib2Index {
   let axesFrom = 0;
   const keys = new Set<string>();
   for (const raw of raws) {
-    const f = classify(raw, gridCache);
+    const f = withMessage(raw.message, () => classify(raw, gridCache));
     if (!('raw' in f)) {
       skipped.push(f);
       continue;
