@@ -18,7 +18,7 @@ import { openGrib2 } from '../../server/ingest/grib2/index.ts';
 import { buildMessage, encodePng, scaleOctets, simpleIntegers, splitFile, splitMessage } from '../../tests/reference/grib2/craft.ts';
 
 const PYTHON = '/usr/bin/python3';
-const REPEATS = 5;
+const REPEATS = 10;
 const NI = 241;
 const NJ = 161;
 
