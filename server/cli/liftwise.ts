@@ -6,6 +6,7 @@
 type Command = { summary: string; load: () => Promise<{ run(argv: string[]): Promise<number> }> };
 
 const commands: Record<string, Command> = {
+  inspect: { summary: 'describe a model-run file (GRIB2 / NetCDF), or dump one field', load: () => import('./commands/inspect.ts') },
 };
 
 function usage(): string {
