@@ -6,6 +6,7 @@
 type Command = { summary: string; load: () => Promise<{ run(argv: string[]): Promise<number> }> };
 
 const commands: Record<string, Command> = {
+  'verify-snapshot': { summary: 'check an exported sealed snapshot offline (hash, chain, signature)', load: () => import('./commands/verify-snapshot.ts') },
 };
 
 function usage(): string {
