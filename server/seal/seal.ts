@@ -124,7 +124,7 @@ function formatIssues(error: { issues: { path: PropertyKey[]; message: string }[
     .join('; ');
 }
 
-function checkSignature(doc: SealedSnapshot, publicKey: KeyObject): SnapshotCheck {
+function checkSignature(doc: SealedSnapshot, headerText: string, publicKey: KeyObject): SnapshotCheck {
   const name = 'signature';
   if (publicKey.asymmetricKeyType !== 'ed25519') {
     return { name, ok: false, detail: `the public key is ${publicKey.asymmetricKeyType ?? 'unknown'}, not Ed25519` };
@@ -135,7 +135,7 @@ function checkSignature(doc: SealedSnapshot, publicKey: KeyObject): SnapshotChec
   if (signature.length !== 64 || signature.toString('base64') !== doc.signature) {
     return { name, ok: false, detail: 'the signature is not a canonical base64 64-byte Ed25519 signature' };
   }
-  const good = verify(null, Buffer.from(sealHeader(doc), 'utf8'), publicKey, signature);
+  const good = verify(null, Buffer.from(headerText, 'utf8'), publicKey, signature);
   if (keyId !== doc.keyId) {
     return { name, ok: false, detail: `the snapshot names key ${doc.keyId} but the public key is ${keyId}${good ? ' (the signature itself verifies)' : '; the signature does not verify'}` };
   }
@@ -192,7 +192,15 @@ export function verifySnapshot(
       : { name: 'content-hash', ok: false, detail: contentHash === null ? contentError : `content hashes to ${short(contentHash)}, the snapshot records ${short(doc.contentHash)}` },
   );
 
-  const headerHash = headerHashOf(doc);
+  let headerText: string | null = null;
+  try {
+    headerText = sealHeader(doc);
+  } catch (err) {
+    const detail = `the header cannot be canonicalised: ${err instanceof Error ? err.message : String(err)}`;
+    checks.push({ name: 'hash', ok: false, detail }, { name: 'signature', ok: false, detail }, checkChain(doc, options));
+    return { valid: false, checks };
+  }
+  const headerHash = sha256Hex(headerText);
   checks.push(
     headerHash === doc.hash
       ? { name: 'hash', ok: true, detail: `header SHA-256 ${short(headerHash)}` }
@@ -208,7 +216,7 @@ export function verifySnapshot(
     } catch (err) {
       checks.push({ name: 'signature', ok: false, detail: err instanceof Error ? err.message : String(err) });
     }
-    if (key) checks.push(checkSignature(doc, key));
+    if (key) checks.push(checkSignature(doc, headerText, key));
   }
 
   checks.push(checkChain(doc, options));

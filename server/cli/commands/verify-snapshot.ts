@@ -75,7 +75,11 @@ function previousHashFrom(file: string): string {
   const inner = json !== null && typeof json === 'object' && 'snapshot' in json ? json.snapshot : json;
   const parsed = sealedSnapshotSchema.safeParse(inner);
   if (!parsed.success) throw new UsageError(`the previous snapshot file ${file} holds no sealed snapshot`);
-  return headerHashOf(parsed.data);
+  try {
+    return headerHashOf(parsed.data);
+  } catch (err) {
+    throw new UsageError(`the previous snapshot file ${file} cannot be hashed: ${err instanceof Error ? err.message : String(err)}`);
+  }
 }
 
 function checkLine(check: SnapshotCheck): string {

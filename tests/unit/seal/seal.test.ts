@@ -103,6 +103,17 @@ describe('verifySnapshot', () => {
     for (const check of result.checks.filter((c) => !c.ok)) expect(check.detail.length).toBeGreaterThan(10);
   });
 
+  it('a header that cannot be canonicalised (an unpaired surrogate) fails instead of throwing', () => {
+    const result = verifySnapshot({ ...clone(first), sealedBy: 'risk.\ud800' }, key.publicKey);
+    expect(failed(result)).toEqual(['hash', 'signature']);
+    expect(result.checks.find((c) => c.name === 'hash')!.detail).toContain('surrogate');
+  });
+
+  it('content with an unpaired surrogate fails the content hash instead of throwing', () => {
+    const result = verifySnapshot({ ...clone(first), content: { note: '\udc00' } }, key.publicKey);
+    expect(failed(result)).toEqual(['content-hash']);
+  });
+
   it('a missing or extra member fails the format check', () => {
     const { sealedBy: _dropped, ...missing } = clone(first);
     expect(failed(verifySnapshot(missing, key.publicKey))).toEqual(['format']);
