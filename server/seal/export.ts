@@ -84,7 +84,10 @@ function chooseKey(embeddedPem: string | null, pinned: KeyObject | null): KeyCho
 
 /**
  * Verify an export file's parsed JSON: either the export `{ snapshot, publicKey }` or a bare
- * sealed document (which then needs a pinned key).
+ * sealed document (which then needs a pinned key). A bad file never throws: the failed checks
+ * say what is wrong.
+ * @throws SealKeyError only when `pinnedPublicKey` is PEM text that is no Ed25519 public key
+ *   (the caller's own input, reported as a usage error by the command line).
  */
 export function verifySnapshotExport(
   candidate: unknown,
