@@ -1,0 +1,69 @@
+/**
+ * Right-hand sides of the QG omega equation written as
+ *   (Laplacian + (f0^2/sigma) d2/dp2) omega = F,
+ * the operator the solver inverts, in Pa-1 s-1 m-2 ... that is Pa s-1 m-2 (units of the
+ * operator applied to omega in Pa s-1). Source: Holton and Hakim, An Introduction to Dynamic
+ * Meteorology (5th ed.), eq. 6.34 (traditional form) and eq. 6.53 (Q-vector form); Hoskins,
+ * Draghici and Davies (1978). The forcing is set on interior points only and is zero on the
+ * lateral boundary and the top and bottom levels, where omega is held at zero.
+ */
+import { ddp } from './differences.ts';
+import { absoluteVorticityAdvection, geostrophicVorticity, geostrophicWind, qVector, qVectorDivergence, thicknessAdvection } from './fields.ts';
+import { horizontalLaplacian } from './differences.ts';
+import type { Field, QgGeometry } from './grid.ts';
+
+/** Zeroes the Dirichlet boundary (lateral edges, bottom and top levels) of a 3-D field. */
+export function zeroBoundary(field: Float64Array, g: QgGeometry): Float64Array {
+  const { nx, ny, nz } = g;
+  const plane = nx * ny;
+  field.fill(0, 0, plane);
+  field.fill(0, (nz - 1) * plane);
+  for (let k = 1; k < nz - 1; k++) {
+    const base = k * plane;
+    field.fill(0, base, base + nx);
+    field.fill(0, base + (ny - 1) * nx, base + plane);
+    for (let j = 1; j < ny - 1; j++) { field[base + j * nx] = 0; field[base + j * nx + nx - 1] = 0; }
+  }
+  return field;
+}
+
+function divideBySigma(field: Float64Array, sigma: Float64Array, g: QgGeometry): void {
+  const plane = g.nx * g.ny;
+  for (let k = 0; k < g.nz; k++) {
+    const inv = 1 / sigma[k];
+    for (let n = k * plane; n < (k + 1) * plane; n++) field[n] *= inv;
+  }
+}
+
+export interface TraditionalForcing {
+  /** (f0/sigma) d/dp [V_g . grad(zeta_g + f)], forcing by differential vorticity advection */
+  vorticity: Float64Array;
+  /** (1/sigma) Laplacian [V_g . grad(-dPhi/dp)], forcing by thickness (temperature) advection */
+  thickness: Float64Array;
+}
+
+/** Traditional forcing from geopotential Phi (m2 s-2) and sigma(p) (m2 Pa-2 s-2), each part in Pa-1 s-1 m-2 ... per omega unit. */
+export function traditionalForcing(phi: Field, sigma: Float64Array, g: QgGeometry): TraditionalForcing {
+  const { u, v } = geostrophicWind(phi, g);
+  const zeta = geostrophicVorticity(phi, g);
+  const vortAdv = absoluteVorticityAdvection(u, v, zeta, g);
+  const vorticity = ddp(vortAdv, g);
+  for (let n = 0; n < vorticity.length; n++) vorticity[n] *= -g.f0;
+  const thickness = horizontalLaplacian(thicknessAdvection(u, v, phi, g), g);
+  for (let n = 0; n < thickness.length; n++) thickness[n] = -thickness[n];
+  divideBySigma(vorticity, sigma, g);
+  divideBySigma(thickness, sigma, g);
+  return { vorticity: zeroBoundary(vorticity, g), thickness: zeroBoundary(thickness, g) };
+}
+
+/** Q-vector forcing (1/sigma) (-2 div Q + f0 beta dv_g/dp), from Phi (m2 s-2) and T (K). */
+export function qVectorForcing(phi: Field, t: Field, sigma: Float64Array, g: QgGeometry): Float64Array {
+  const { u, v } = geostrophicWind(phi, g);
+  const { qx, qy } = qVector(u, v, t, g);
+  const forcing = qVectorDivergence(qx, qy, g);
+  const dvdp = ddp(v, g);
+  const fb = g.f0 * g.beta;
+  for (let n = 0; n < forcing.length; n++) forcing[n] = -2 * forcing[n] + fb * dvdp[n];
+  divideBySigma(forcing, sigma, g);
+  return zeroBoundary(forcing, g);
+}
