@@ -1,15 +1,13 @@
 /**
  * Right-hand sides of the QG omega equation written as
  *   (Laplacian + (f0^2/sigma) d2/dp2) omega = F,
- * the operator the solver inverts, in Pa-1 s-1 m-2 ... that is Pa s-1 m-2 (units of the
- * operator applied to omega in Pa s-1). Source: Holton and Hakim, An Introduction to Dynamic
+ * the operator the solver inverts; F is in Pa s-1 m-2 (the operator applied to omega in Pa s-1). Source: Holton and Hakim, An Introduction to Dynamic
  * Meteorology (5th ed.), eq. 6.34 (traditional form) and eq. 6.53 (Q-vector form); Hoskins,
  * Draghici and Davies (1978). The forcing is set on interior points only and is zero on the
  * lateral boundary and the top and bottom levels, where omega is held at zero.
  */
-import { ddp } from './differences.ts';
+import { ddp, horizontalLaplacian } from './differences.ts';
 import { absoluteVorticityAdvection, geostrophicVorticity, geostrophicWind, qVector, qVectorDivergence, thicknessAdvection } from './fields.ts';
-import { horizontalLaplacian } from './differences.ts';
 import type { Field, QgGeometry } from './grid.ts';
 
 /** Zeroes the Dirichlet boundary (lateral edges, bottom and top levels) of a 3-D field. */
@@ -42,7 +40,7 @@ export interface TraditionalForcing {
   thickness: Float64Array;
 }
 
-/** Traditional forcing from geopotential Phi (m2 s-2) and sigma(p) (m2 Pa-2 s-2), each part in Pa-1 s-1 m-2 ... per omega unit. */
+/** Traditional forcing from geopotential Phi (m2 s-2) and sigma(p) (m2 Pa-2 s-2); each part in Pa s-1 m-2. */
 export function traditionalForcing(phi: Field, sigma: Float64Array, g: QgGeometry): TraditionalForcing {
   const { u, v } = geostrophicWind(phi, g);
   const zeta = geostrophicVorticity(phi, g);
@@ -56,7 +54,7 @@ export function traditionalForcing(phi: Field, sigma: Float64Array, g: QgGeometr
   return { vorticity: zeroBoundary(vorticity, g), thickness: zeroBoundary(thickness, g) };
 }
 
-/** Q-vector forcing (1/sigma) (-2 div Q + f0 beta dv_g/dp), from Phi (m2 s-2) and T (K). */
+/** Q-vector forcing (1/sigma) (-2 div Q + f0 beta dv_g/dp), Pa s-1 m-2, from Phi (m2 s-2) and T (K). */
 export function qVectorForcing(phi: Field, t: Field, sigma: Float64Array, g: QgGeometry): Float64Array {
   const { u, v } = geostrophicWind(phi, g);
   const { qx, qy } = qVector(u, v, t, g);

@@ -84,3 +84,41 @@ export function relativeResidual(op: OmegaOperator, omega: Float64Array, rhs: Fl
   if (den === 0) return num === 0 ? 0 : Infinity;
   return Math.sqrt(num / den);
 }
+
+export interface AssembledSystem {
+  /** number of unknowns (interior points), numbered k-major then j then i over the interior */
+  size: number;
+  rows: Int32Array;
+  cols: Int32Array;
+  values: Float64Array;
+  /** full-grid index of each unknown */
+  gridIndex: Int32Array;
+}
+
+/** The discrete operator as a sparse matrix in coordinate (COO) form over the interior unknowns. */
+export function assembleOmegaSystem(op: OmegaOperator): AssembledSystem {
+  const { nx, ny, nz } = op.g;
+  const nxi = nx - 2, nyi = ny - 2, nzi = nz - 2;
+  const size = nxi * nyi * nzi;
+  const unknown = (k: number, j: number, i: number) => ((k - 1) * nyi + (j - 1)) * nxi + (i - 1);
+  const rows: number[] = [], cols: number[] = [], values: number[] = [];
+  const gridIndex = new Int32Array(size);
+  for (let k = 1; k < nz - 1; k++) {
+    for (let j = 1; j < ny - 1; j++) {
+      for (let i = 1; i < nx - 1; i++) {
+        const r = unknown(k, j, i);
+        gridIndex[r] = (k * ny + j) * nx + i;
+        const cx = op.cLon[j], cs = op.cSouth[j], cn = op.cNorth[j], cb = op.cBelow[k], ca = op.cAbove[k];
+        const entries: [number, number, number, number][] = [
+          [k, j, i, -(cb + ca) - 2 * cx - cs - cn],
+          [k, j, i - 1, cx], [k, j, i + 1, cx], [k, j - 1, i, cs], [k, j + 1, i, cn], [k - 1, j, i, cb], [k + 1, j, i, ca],
+        ];
+        for (const [kk, jj, ii, v] of entries) {
+          if (kk < 1 || kk > nz - 2 || jj < 1 || jj > ny - 2 || ii < 1 || ii > nx - 2) continue;
+          rows.push(r); cols.push(unknown(kk, jj, ii)); values.push(v);
+        }
+      }
+    }
+  }
+  return { size, rows: Int32Array.from(rows), cols: Int32Array.from(cols), values: Float64Array.from(values), gridIndex };
+}
