@@ -41,17 +41,23 @@ export function coriolis(lat0Deg: number): number {
 }
 
 /**
- * A wave in westerly shear: Phi = Phi_std(p) - f0 a U(s) (lat - latc) + W(s) shape(lon, lat), with s = ln(p_bottom / p).
- * `shapeAt` and the s-polynomials U, W (coefficients c0 + c1 s + c2 s^2) define it; T follows hydrostatically:
- * T = (1/R) dPhi/ds.
+ * Balanced fields: Phi = Phi_std(p) - f0 a U(s) (lat - latc) + sum of W(s) shape(lon, lat), with
+ * s = ln(p_bottom / p); U = u0 + u1 s + u2 s^2 and each W given with its derivative dW/ds.
+ * T follows hydrostatically: T = -(p/R) dPhi/dp = (1/R) dPhi/ds.
  */
+export interface WaveComponent {
+  w: (s: number) => [number, number];
+  shape: (lonRad: number, latRad: number) => number;
+}
+
 export interface WaveSpec {
   latc: number;
   u: [number, number, number];
-  w: [number, number, number];
-  shape: (lonRad: number, latRad: number) => number;
+  components: WaveComponent[];
   pBottom?: number;
 }
+
+export const poly = (c0: number, c1 = 0, c2 = 0) => (s: number): [number, number] => [c0 + c1 * s + c2 * s * s, c1 + 2 * c2 * s];
 
 export function balancedFields(ax: QgAxes, spec: WaveSpec): { z: Float64Array; t: Float64Array } {
   const nx = ax.lon.length, ny = ax.lat.length, nz = ax.levels.length;
@@ -61,15 +67,21 @@ export function balancedFields(ax: QgAxes, spec: WaveSpec): { z: Float64Array; t
   const rad = Math.PI / 180, latc = spec.latc * rad;
   for (let k = 0; k < nz; k++) {
     const p = ax.levels[k], s = Math.log(pb / p);
-    const U = spec.u[0] + spec.u[1] * s + spec.u[2] * s * s, dU = spec.u[1] + 2 * spec.u[2] * s;
-    const W = spec.w[0] + spec.w[1] * s + spec.w[2] * s * s, dW = spec.w[1] + 2 * spec.w[2] * s;
+    const [U, dU] = poly(...spec.u)(s);
+    const ws = spec.components.map((c) => c.w(s));
     for (let j = 0; j < ny; j++) {
       const lat = ax.lat[j] * rad;
       for (let i = 0; i < nx; i++) {
-        const shape = spec.shape(ax.lon[i] * rad, lat);
         const n = (k * ny + j) * nx + i;
-        z[n] = standardGeopotential(p) - f0 * EARTH_RADIUS * U * (lat - latc) + W * shape;
-        t[n] = standardTemperature(p) + (-f0 * EARTH_RADIUS * dU * (lat - latc) + dW * shape) / R;
+        let phi = standardGeopotential(p) - f0 * EARTH_RADIUS * U * (lat - latc);
+        let dphi = R * standardTemperature(p) - f0 * EARTH_RADIUS * dU * (lat - latc);
+        spec.components.forEach((c, m) => {
+          const shape = c.shape(ax.lon[i] * rad, lat);
+          phi += ws[m][0] * shape;
+          dphi += ws[m][1] * shape;
+        });
+        z[n] = phi;
+        t[n] = dphi / R;
       }
     }
   }
