@@ -14,7 +14,8 @@ const spec = (phase: number): WaveSpec => ({
   components: [{ w: poly(-300, -400), shape: (lon, lat) => Math.cos(6 * lon - phase) * Math.exp(-(((lat - 50 * rad) / (10 * rad)) ** 2)) }],
 });
 
-describe('OmegaPool', () => {
+// starting two worker threads with the tsx loader takes a few seconds on a loaded machine
+describe('OmegaPool', { timeout: 30_000 }, () => {
   const pool = new OmegaPool({ threads: 2 });
   afterAll(() => pool.destroy());
 
