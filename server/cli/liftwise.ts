@@ -6,6 +6,7 @@
 type Command = { summary: string; load: () => Promise<{ run(argv: string[]): Promise<number> }> };
 
 const commands: Record<string, Command> = {
+  diagnose: { summary: 'QG omega diagnosis of a run, step by step', load: () => import('./commands/diagnose.ts') },
 };
 
 function usage(): string {
