@@ -57,6 +57,10 @@ function median(xs: number[]): number {
   return s.length % 2 ? s[(s.length - 1) / 2] : 0.5 * (s[s.length / 2 - 1] + s[s.length / 2]);
 }
 
+/**
+ * Solve and operator application are timed interleaved (one solve, then one application), so
+ * that both see the same load on a shared machine; medians and minima are both reported.
+ */
 function benchGrid(step: number, repeats: number) {
   const ax = gridAxes(step);
   const g = qgGeometry(ax);
@@ -65,23 +69,23 @@ function benchGrid(step: number, repeats: number) {
   const solver = new OmegaSolver(g);
   solver.setStability(d.sigma);
   const rhs = Float64Array.from(d.forcing.vorticity, (v, n) => v + d.forcing.thickness[n]);
-  const out = new Float64Array(rhs.length);
-  const times: number[] = [];
+  const out = new Float64Array(rhs.length), work = new Float64Array(rhs.length);
+  const solveTimes: number[] = [], applyTimes: number[] = [];
   let residual = 0;
   for (let r = 0; r < repeats; r++) {
     const res = solver.solve(rhs, out);
-    times.push(res.solveMs);
+    solveTimes.push(res.solveMs);
     residual = Math.max(residual, res.residual);
-  }
-  const work = new Float64Array(rhs.length);
-  const applyTimes: number[] = [];
-  for (let r = 0; r < repeats; r++) {
     const t0 = performance.now();
     applyOmegaOperator(solver.operator, out, work);
     applyTimes.push(performance.now() - t0);
   }
-  const solveMs = median(times), applyMs = median(applyTimes);
-  return { g, solver, rhs, omega: out.slice(), solveMs, residual, applyMs, applications: solveMs / applyMs };
+  const solveMs = median(solveTimes), applyMs = median(applyTimes);
+  const solveMin = Math.min(...solveTimes), applyMin = Math.min(...applyTimes);
+  return {
+    g, solver, rhs, omega: out.slice(), solveMs, solveMin, residual, applyMs, applyMin,
+    applications: solveMs / applyMs, applicationsMin: solveMin / applyMin,
+  };
 }
 
 const SCIPY = `
@@ -135,14 +139,14 @@ const mark = (ok: boolean) => (ok ? 'ok' : 'MISSED');
 
 async function main(): Promise<void> {
   console.log(`QG omega solver benchmark (node ${process.version}, ${os.availableParallelism()} cores, load ${os.loadavg()[0].toFixed(2)})`);
-  const large = benchGrid(0.25, 15);
-  const small = benchGrid(0.5, 21);
+  const large = benchGrid(0.25, 31);
+  const small = benchGrid(0.5, 41);
   for (const [name, b] of [['241x161x12 (0.25 deg)', large], ['121x81x12 (0.5 deg)', small]] as const) {
     console.log(`\n${name}: ${b.g.nx * b.g.ny * b.g.nz} points`);
-    console.log(`  median solve          ${b.solveMs.toFixed(2)} ms`);
+    console.log(`  solve                 median ${b.solveMs.toFixed(2)} ms, min ${b.solveMin.toFixed(2)} ms`);
     console.log(`  relative residual     ${b.residual.toExponential(2)}  [target <= ${TARGET.residual}: ${mark(b.residual <= TARGET.residual)}]`);
-    console.log(`  one operator apply    ${b.applyMs.toFixed(3)} ms`);
-    console.log(`  solve cost            ${b.applications.toFixed(1)} operator applications  [target <= ${TARGET.applications}: ${mark(b.applications <= TARGET.applications)}]`);
+    console.log(`  one operator apply    median ${b.applyMs.toFixed(3)} ms, min ${b.applyMin.toFixed(3)} ms`);
+    console.log(`  solve cost            ${b.applications.toFixed(1)} operator applications (medians; ${b.applicationsMin.toFixed(1)} from minima)  [target <= ${TARGET.applications}: ${mark(b.applications <= TARGET.applications)}]`);
   }
   console.log(`\n  large grid single-threaded solve target <= ${TARGET.solveMs} ms: ${mark(large.solveMs <= TARGET.solveMs)}`);
   const sci = scipyBench(small);

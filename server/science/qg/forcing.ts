@@ -8,22 +8,7 @@
  */
 import { ddp, horizontalLaplacian } from './differences.ts';
 import { absoluteVorticityAdvection, geostrophicVorticity, geostrophicWind, qVector, qVectorDivergence, thicknessAdvection } from './fields.ts';
-import type { Field, QgGeometry } from './grid.ts';
-
-/** Zeroes the Dirichlet boundary (lateral edges, bottom and top levels) of a 3-D field. */
-export function zeroBoundary(field: Float64Array, g: QgGeometry): Float64Array {
-  const { nx, ny, nz } = g;
-  const plane = nx * ny;
-  field.fill(0, 0, plane);
-  field.fill(0, (nz - 1) * plane);
-  for (let k = 1; k < nz - 1; k++) {
-    const base = k * plane;
-    field.fill(0, base, base + nx);
-    field.fill(0, base + (ny - 1) * nx, base + plane);
-    for (let j = 1; j < ny - 1; j++) { field[base + j * nx] = 0; field[base + j * nx + nx - 1] = 0; }
-  }
-  return field;
-}
+import { zeroBoundary, type Field, type QgGeometry } from './grid.ts';
 
 function divideBySigma(field: Float64Array, sigma: Float64Array, g: QgGeometry): void {
   const plane = g.nx * g.ny;

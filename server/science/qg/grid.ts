@@ -118,3 +118,18 @@ export function threePointDerivativeWeights(x: number, x0: number, x1: number, x
     (2 * x - x0 - x1) / ((x2 - x0) * (x2 - x1)),
   ];
 }
+
+/** Zeroes the Dirichlet boundary (lateral edges, bottom and top levels) of a 3-D field. */
+export function zeroBoundary(field: Float64Array, g: QgGeometry): Float64Array {
+  const { nx, ny, nz } = g;
+  const plane = nx * ny;
+  field.fill(0, 0, plane);
+  field.fill(0, (nz - 1) * plane);
+  for (let k = 1; k < nz - 1; k++) {
+    const base = k * plane;
+    field.fill(0, base, base + nx);
+    field.fill(0, base + (ny - 1) * nx, base + plane);
+    for (let j = 1; j < ny - 1; j++) { field[base + j * nx] = 0; field[base + j * nx + nx - 1] = 0; }
+  }
+  return field;
+}

@@ -14,7 +14,7 @@
  */
 import { DstI } from './fft.ts';
 import { verticalModes, type VerticalModes } from './eigen.ts';
-import type { QgGeometry } from './grid.ts';
+import { zeroBoundary, type QgGeometry } from './grid.ts';
 import { omegaOperator, relativeResidual, type OmegaOperator } from './operator.ts';
 
 export interface SolveReport {
@@ -114,7 +114,7 @@ export class OmegaSolver {
     const { nx, ny } = this.g;
     const { nxi, nyi, spectral } = this;
     const plane = nx * ny, block = nxi * nyi;
-    out.fill(0);
+    zeroBoundary(out, this.g);
     for (let j = 0; j < nyi; j++) {
       const dst0 = plane + (j + 1) * nx + 1;
       for (let k = 0; k < modes.m; k++) {
@@ -161,8 +161,15 @@ function combineRows(
   dst: Float64Array, d: number, coef: Float64Array, c0: number, cStride: number,
   src: Float64Array, s0: number, sStride: number, count: number, len: number,
 ): void {
-  dst.fill(0, d, d + len);
   let r = 0;
+  if (count >= 4) {
+    const a0 = coef[c0], a1 = coef[c0 + cStride], a2 = coef[c0 + 2 * cStride], a3 = coef[c0 + 3 * cStride];
+    const p0 = s0, p1 = p0 + sStride, p2 = p1 + sStride, p3 = p2 + sStride;
+    for (let i = 0; i < len; i++) dst[d + i] = a0 * src[p0 + i] + a1 * src[p1 + i] + a2 * src[p2 + i] + a3 * src[p3 + i];
+    r = 4;
+  } else {
+    dst.fill(0, d, d + len);
+  }
   for (; r + 3 < count; r += 4) {
     const a0 = coef[c0 + r * cStride], a1 = coef[c0 + (r + 1) * cStride];
     const a2 = coef[c0 + (r + 2) * cStride], a3 = coef[c0 + (r + 3) * cStride];
