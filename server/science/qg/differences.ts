@@ -1,6 +1,6 @@
 /**
- * Second-order finite differences on the sphere (SCIENCE.md section 2; Holton and Hakim,
- * An Introduction to Dynamic Meteorology, 5th ed., section 13.3 on finite differences):
+ * Second-order finite differences on the sphere (SCIENCE.md section 2; standard centred
+ * differences as in Holton and Hakim, An Introduction to Dynamic Meteorology, chapter on numerical modelling):
  * x = a cos(lat) lon, y = a lat, d/dx = 1/(a cos lat) d/dlon, d/dy = 1/a d/dlat.
  * Centred differences inside, second-order one-sided differences on the edges, so that every
  * derived field stays second-order accurate up to the lateral boundary.

@@ -4,7 +4,7 @@
  * positive and S symmetric (the three-point second difference), so B = D^(1/2) S D^(1/2) is
  * symmetric and similar to M: M = V Lambda V^-1 with V = D^(1/2) Q, V^-1 = Q^T D^(-1/2), where
  * B = Q Lambda Q^T. B is decomposed with the cyclic Jacobi method (Golub and Van Loan,
- * Matrix Computations, 4th ed., section 8.5), accurate to round-off for the small nz of a model run.
+ * Matrix Computations, chapter on the symmetric eigenvalue problem, Jacobi methods), accurate to round-off for the small nz of a model run.
  */
 import type { OmegaOperator } from './operator.ts';
 
@@ -27,7 +27,7 @@ export function symmetricEigen(matrix: Float64Array, n: number): { values: Float
       for (let q = p + 1; q < n; q++) {
         const apq = a[p * n + q];
         if (apq === 0) continue;
-        // rotation angle chosen to annihilate a[p][q] (Golub and Van Loan, Algorithm 8.5.1)
+        // the classical Jacobi rotation that annihilates a[p][q], with the smaller root t for stability
         const tau = (a[q * n + q] - a[p * n + p]) / (2 * apq);
         const t = (tau >= 0 ? 1 : -1) / (Math.abs(tau) + Math.sqrt(1 + tau * tau));
         const c = 1 / Math.sqrt(1 + t * t), s = t * c;

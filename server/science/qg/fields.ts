@@ -74,8 +74,8 @@ export const MIN_STATIC_STABILITY = 1e-7;
 
 /**
  * Static stability sigma(p) = -(R_d T / p) d(ln theta)/dp, m2 Pa-2 s-2, with theta = T (p0/p)^kappa,
- * from a temperature profile T(p) in K on levels in Pa (Holton and Hakim, eq. 6.5 and
- * section 6.4). Levels where sigma <= MIN_STATIC_STABILITY are clamped to it and named in `clamped`.
+ * from a temperature profile T(p) in K on levels in Pa (Holton and Hakim,
+ * chapter 6, where sigma is defined in isobaric coordinates). Levels where sigma <= MIN_STATIC_STABILITY are clamped to it and named in `clamped`.
  */
 export function staticStability(levels: Float64Array, temperature: Float64Array): { sigma: Float64Array; clamped: number[] } {
   const nz = levels.length;
@@ -95,7 +95,7 @@ export function staticStability(levels: Float64Array, temperature: Float64Array)
 
 /**
  * Q-vector Q = -(R/p) (dV_g/dx . grad T, dV_g/dy . grad T), m Pa-1 s-3 (Hoskins, Draghici and
- * Davies 1978; Holton and Hakim section 6.4.2). On the sphere dV_g/dx is the covariant
+ * Davies 1978; Holton and Hakim chapter 6). On the sphere dV_g/dx is the covariant
  * derivative of the wind vector, (du/dx - v tan(lat)/a, dv/dx + u tan(lat)/a): with it the
  * Q-vector form equals the traditional form exactly in the continuum, also on the sphere.
  */

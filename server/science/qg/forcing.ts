@@ -2,7 +2,7 @@
  * Right-hand sides of the QG omega equation written as
  *   (Laplacian + (f0^2/sigma) d2/dp2) omega = F,
  * the operator the solver inverts; F is in Pa s-1 m-2 (the operator applied to omega in Pa s-1). Source: Holton and Hakim, An Introduction to Dynamic
- * Meteorology (5th ed.), eq. 6.34 (traditional form) and eq. 6.53 (Q-vector form); Hoskins,
+ * Meteorology (5th ed.), chapter 6 (traditional and Q-vector forms of the omega equation); Hoskins,
  * Draghici and Davies (1978). The forcing is set on interior points only and is zero on the
  * lateral boundary and the top and bottom levels, where omega is held at zero.
  */
@@ -39,7 +39,11 @@ export function traditionalForcing(phi: Field, sigma: Float64Array, g: QgGeometr
   return { vorticity: zeroBoundary(vorticity, g), thickness: zeroBoundary(thickness, g) };
 }
 
-/** Q-vector forcing (1/sigma) (-2 div Q + f0 beta dv_g/dp), Pa s-1 m-2, from Phi (m2 s-2) and T (K). */
+/**
+ * Q-vector forcing (1/sigma) (-2 div Q + f0 beta dv_g/dp), Pa s-1 m-2, from Phi (m2 s-2) and T (K).
+ * Equal to the traditional forcing when T is hydrostatic with Phi (T = -(p/R) dPhi/dp); on real
+ * data the two forms also differ where the file's z and t are not exactly hydrostatic.
+ */
 export function qVectorForcing(phi: Field, t: Field, sigma: Float64Array, g: QgGeometry): Float64Array {
   const { u, v } = geostrophicWind(phi, g);
   const { qx, qy } = qVector(u, v, t, g);

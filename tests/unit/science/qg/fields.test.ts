@@ -39,7 +39,7 @@ describe('static stability (source: ICAO Doc 7488 standard atmosphere; textbook 
   });
 });
 
-describe('geostrophic wind (analytic Phi on the sphere; source: Holton and Hakim, section 3.2)', () => {
+describe('geostrophic wind (analytic Phi on the sphere; source: Holton and Hakim, geostrophic wind in isobaric coordinates)', () => {
   function maxError(step: number): number {
     const ax = axes(30, 60, -20, 20, step, [100000, 50000, 20000]);
     const g = qgGeometry(ax);

@@ -18,7 +18,7 @@ function valueAt(field: Float64Array, ax: { lat: Float64Array; lon: Float64Array
   return field[(k * ax.lat.length + j) * ax.lon.length + i];
 }
 
-describe('traditional and Q-vector forms agree on smooth balanced fields (source: Holton and Hakim, section 6.4)', () => {
+describe('traditional and Q-vector forms agree on smooth balanced fields (source: Holton and Hakim, chapter 6)', () => {
   const spec: WaveSpec = {
     latc: 45,
     u: [8, 6, 1],
@@ -45,7 +45,7 @@ describe('traditional and Q-vector forms agree on smooth balanced fields (source
   });
 });
 
-describe('signs (source: Holton and Hakim, section 6.4.1)', () => {
+describe('signs (source: Holton and Hakim, chapter 6)', () => {
   it('cyclonic vorticity advection increasing with height ahead (east) of a trough gives omega < 0; behind it omega > 0', () => {
     // trough at lon 0 (Phi minimum), zonal wavenumber 8, amplitude and westerlies growing with height
     const spec: WaveSpec = {
