@@ -2,8 +2,9 @@
  * QG fields and the refusals of the diagnosis.
  */
 import { describe, expect, it } from 'vitest';
+import type { QgInputError } from '../../../../server/science/qg/index.ts';
 import {
-  diagnose, EquatorialDomainError, geostrophicWind, MissingValuesError, patternCorrelation, qgGeometry, QgInputError,
+  diagnose, EquatorialDomainError, geostrophicWind, MissingValuesError, patternCorrelation, qgGeometry,
   staticStability, TooFewLevelsError,
 } from '../../../../server/science/qg/index.ts';
 import { DRY_AIR_GAS_CONSTANT as R, EARTH_RADIUS, KAPPA, STANDARD_GRAVITY } from '../../../../server/science/constants.ts';
