@@ -104,14 +104,18 @@ export function qVector(u: Float64Array, v: Float64Array, t: Field, g: QgGeometr
   const ux = ddx(u, g), vx = ddx(v, g), uy = ddy(u, g), vy = ddy(v, g);
   const tx = ddx(t, g), ty = ddy(t, g);
   const qx = new Float64Array(u.length), qy = new Float64Array(u.length);
-  const plane = nx * ny;
-  for (let n = 0; n < u.length; n++) {
-    const k = Math.floor(n / plane), j = Math.floor((n % plane) / nx);
+  const levels = u.length / (nx * ny);
+  for (let k = 0; k < levels; k++) {
     const rp = DRY_AIR_GAS_CONSTANT / g.levels[k];
-    const metric = g.tanLat[j] / g.a;
-    const dudx = ux[n] - v[n] * metric, dvdx = vx[n] + u[n] * metric;
-    qx[n] = -rp * (dudx * tx[n] + dvdx * ty[n]);
-    qy[n] = -rp * (uy[n] * tx[n] + vy[n] * ty[n]);
+    for (let j = 0; j < ny; j++) {
+      const metric = g.tanLat[j] / g.a;
+      const row = (k * ny + j) * nx;
+      for (let n = row; n < row + nx; n++) {
+        const dudx = ux[n] - v[n] * metric, dvdx = vx[n] + u[n] * metric;
+        qx[n] = -rp * (dudx * tx[n] + dvdx * ty[n]);
+        qy[n] = -rp * (uy[n] * tx[n] + vy[n] * ty[n]);
+      }
+    }
   }
   return { qx, qy };
 }
@@ -120,8 +124,15 @@ export function qVector(u: Float64Array, v: Float64Array, t: Field, g: QgGeometr
 export function qVectorDivergence(qx: Float64Array, qy: Float64Array, g: QgGeometry): Float64Array {
   const { nx, ny } = g;
   const scaled = new Float64Array(qy.length);
-  for (let n = 0; n < qy.length; n++) scaled[n] = qy[n] * g.cosLat[Math.floor(n / nx) % ny];
+  const rows = qy.length / nx;
+  for (let r = 0; r < rows; r++) {
+    const c = g.cosLat[r % ny];
+    for (let n = r * nx; n < (r + 1) * nx; n++) scaled[n] = qy[n] * c;
+  }
   const dx = ddx(qx, g), dy = ddy(scaled, g);
-  for (let n = 0; n < dx.length; n++) dx[n] += dy[n] / g.cosLat[Math.floor(n / nx) % ny];
+  for (let r = 0; r < rows; r++) {
+    const inv = 1 / g.cosLat[r % ny];
+    for (let n = r * nx; n < (r + 1) * nx; n++) dx[n] += dy[n] * inv;
+  }
   return dx;
 }
