@@ -22,7 +22,7 @@ async function main(): Promise<void> {
     throw new Error(`cannot migrate the database at ${redact(config.databaseUrl)}: ${(err as Error).message}`);
   }
   const queue = await createQueue(config.databaseUrl, logger);
-  if (config.inProcessWorker) await startAllWorkers({ db, config, queue, logger });
+  const workers = config.inProcessWorker ? await startAllWorkers({ db, config, queue, logger }) : null;
   const mail = await startMail(config, db, logger);
   const app = createApp({ config, db, logger, queue, mail });
   const server: Server = app.listen(config.port, config.host);
@@ -41,7 +41,7 @@ async function main(): Promise<void> {
 
   const shutdown = () => {
     server.close();
-    void Promise.all([queue.stop(), mail.stop()])
+    void Promise.all([queue.stop(), mail.stop(), workers?.stop()])
       .catch(() => {})
       .finally(() => db.close().finally(() => process.exit(0)));
     setTimeout(() => process.exit(0), 5_000).unref();

@@ -2,9 +2,29 @@
  * Which handler serves which queue. Used by the in-process worker of `npm start` and by the
  * stand-alone worker (`npm run worker`) alike.
  */
+import { processMemberHandler, type MemberDeriver } from '../services/pipeline.ts';
 import { readRunHandler, type RunsDeps } from '../services/runs.ts';
+import { OmegaPool } from './omega-pool.ts';
 import { QUEUE_NAMES, startWorkers } from './queue.ts';
 
-export async function startAllWorkers(deps: RunsDeps): Promise<void> {
-  await startWorkers(deps.queue, { [QUEUE_NAMES.readRun]: readRunHandler(deps) }, deps.logger);
+/** Work that follows each member's diagnosis, in order. */
+export const MEMBER_DERIVERS: MemberDeriver[] = [];
+
+export interface Workers {
+  pool: OmegaPool;
+  stop(): Promise<void>;
+}
+
+export async function startAllWorkers(deps: RunsDeps, options: { threads?: number } = {}): Promise<Workers> {
+  const pool = new OmegaPool({ threads: options.threads });
+  const pipeline = { ...deps, pool, derivers: MEMBER_DERIVERS };
+  await startWorkers(
+    deps.queue,
+    {
+      [QUEUE_NAMES.readRun]: readRunHandler(deps),
+      [QUEUE_NAMES.processMember]: processMemberHandler(pipeline),
+    },
+    deps.logger,
+  );
+  return { pool, stop: () => pool.destroy() };
 }

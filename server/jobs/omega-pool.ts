@@ -12,6 +12,7 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Piscina } from 'piscina';
 import type { QgAxes } from '../science/qg/grid.ts';
 import type { QgDiagnosis } from '../science/qg/diagnose.ts';
+import { QgInputError, type QgErrorCode } from '../science/qg/errors.ts';
 
 export interface OmegaTask {
   member: number;
@@ -69,7 +70,15 @@ export class OmegaPool {
     };
     const transferList = [sent.z.buffer, sent.t.buffer, sent.axes.lat.buffer, sent.axes.lon.buffer, sent.axes.levels.buffer];
     if (sent.w) transferList.push(sent.w.buffer);
-    return this.piscina.run(sent, { transferList: transferList as ArrayBuffer[] });
+    try {
+      return await this.piscina.run(sent, { transferList: transferList as ArrayBuffer[] });
+    } catch (err) {
+      // The worker marks refusals of the input so that they stay refusals (not retried as faults).
+      const message = (err as Error)?.message ?? '';
+      const marked = /^QG-REFUSAL:([\w-]+):([\s\S]*)$/.exec(message);
+      if (marked) throw new QgInputError(marked[1] as QgErrorCode, marked[2]);
+      throw err;
+    }
   }
 
   async destroy(): Promise<void> {

@@ -5,6 +5,7 @@
  */
 import { move, transferableSymbol, valueSymbol } from 'piscina';
 import { diagnose } from '../science/qg/diagnose.ts';
+import { QgInputError } from '../science/qg/errors.ts';
 import { qgGeometry } from '../science/qg/grid.ts';
 import { OmegaSolver } from '../science/qg/solver.ts';
 import type { OmegaTask, OmegaTaskResult } from './omega-pool.ts';
@@ -28,8 +29,17 @@ function solverFor(task: OmegaTask): OmegaSolver {
   return solver;
 }
 
+/** Marks a refusal of the input (not a fault) across the thread boundary, where error classes are lost. */
+export const REFUSAL_PREFIX = 'QG-REFUSAL:';
+
 export default function solveOmegaTask(task: OmegaTask) {
-  const d = diagnose({ axes: task.axes, z: task.z, t: task.t, w: task.w ?? null }, { solver: solverFor(task) });
+  let d: ReturnType<typeof diagnose>;
+  try {
+    d = diagnose({ axes: task.axes, z: task.z, t: task.t, w: task.w ?? null }, { solver: solverFor(task) });
+  } catch (err) {
+    if (err instanceof QgInputError) throw new Error(`${REFUSAL_PREFIX}${err.code}:${err.message}`);
+    throw err;
+  }
   const result: OmegaTaskResult = {
     member: task.member,
     step: task.step,

@@ -7,12 +7,14 @@ import type { Logger } from '../logger.ts';
 
 export const QUEUE_NAMES = {
   readRun: 'run-read',
+  processMember: 'member-process',
 } as const;
 
 export type QueueName = (typeof QUEUE_NAMES)[keyof typeof QUEUE_NAMES];
 
 export interface RunJob {
   runId: string;
+  member?: number;
 }
 
 export interface JobQueue {
@@ -35,16 +37,16 @@ export async function createQueue(databaseUrl: string, logger: Logger): Promise<
   };
 }
 
-export type JobHandler<T> = (job: PgBoss.JobWithMetadata<T>) => Promise<void>;
+export type JobHandler<T = RunJob> = (job: PgBoss.JobWithMetadata<T>) => Promise<void>;
 
 /** Starts workers for the given handlers, one job at a time per queue (the numerics use their own thread pool). */
-export async function startWorkers(queue: JobQueue, handlers: Partial<Record<QueueName, JobHandler<RunJob>>>, logger: Logger): Promise<void> {
-  for (const [name, handler] of Object.entries(handlers)) {
+export async function startWorkers(queue: JobQueue, handlers: Partial<Record<QueueName, JobHandler<never>>>, logger: Logger): Promise<void> {
+  for (const [name, handler] of Object.entries(handlers) as [QueueName, JobHandler<never>][]) {
     await queue.boss.work<RunJob>(name, { includeMetadata: true, batchSize: 1, pollingIntervalSeconds: 1 }, async (jobs) => {
       for (const job of jobs) {
         const log = logger.child({ queue: name, jobId: job.id, runId: job.data.runId, attempt: job.retryCount + 1 });
         log.info('job started');
-        await handler!(job);
+        await handler(job as never);
         log.info('job done');
       }
     });

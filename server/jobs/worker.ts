@@ -15,10 +15,10 @@ async function main(): Promise<void> {
   const db = createDb(config.databaseUrl, 5);
   await applyMigrations(db.db, db.pool);
   const queue = await createQueue(config.databaseUrl, logger);
-  await startAllWorkers({ db, config, queue, logger });
+  const workers = await startAllWorkers({ db, config, queue, logger });
   console.log('Liftwise worker is waiting for jobs');
   const stop = () => {
-    void queue.stop().finally(() => db.close().finally(() => process.exit(0)));
+    void Promise.all([queue.stop(), workers.stop()]).finally(() => db.close().finally(() => process.exit(0)));
   };
   process.once('SIGINT', stop);
   process.once('SIGTERM', stop);

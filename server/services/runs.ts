@@ -12,6 +12,7 @@ import { IngestError, openRun, sniffFormat, type RunInfo } from '../ingest/index
 import type { JobHandler, JobQueue, RunJob } from '../jobs/queue.ts';
 import { QUEUE_NAMES } from '../jobs/queue.ts';
 import type { Logger } from '../logger.ts';
+import { startDiagnosis } from './pipeline.ts';
 import { discardUpload, keepUpload, runFilePath, streamToStorage } from './storage.ts';
 
 export interface RunsDeps {
@@ -127,7 +128,7 @@ async function setRun(db: DbHandle, id: string, values: Partial<typeof runs.$inf
   await db.db.update(runs).set({ ...values, updatedAt: new Date() }).where(eq(runs.id, id));
 }
 
-/** Job handler: reads the stored file's headers into the run row. Idempotent: a run past reading is left alone. */
+/** Job handler: reads the stored file's headers into the run row, then starts the diagnosis. Idempotent: a run past reading is left alone. */
 export function readRunHandler(deps: RunsDeps): JobHandler<RunJob> {
   return async (job) => {
     const { db, config } = deps;
@@ -152,9 +153,9 @@ export function readRunHandler(deps: RunsDeps): JobHandler<RunJob> {
           levelsHpa: Array.from(info.axes.levels, (p) => p / 100),
           variables: info.variables.map((v) => v.name),
           grid: describeGrid(info),
-          state: 'ready',
-          progress: 1,
+          progress: 0.05,
         });
+        await startDiagnosis(deps, row.id, info);
       } finally {
         await reader.close();
       }

@@ -55,7 +55,7 @@ export async function startTestApp(env: Record<string, string> = {}, options: { 
   const db = createDb(config.databaseUrl, 5);
   await applyMigrations(db.db, db.pool);
   const queue = await createQueue(config.databaseUrl, logger);
-  if (options.workers !== false) await startAllWorkers({ db, config, queue, logger });
+  const workers = options.workers !== false ? await startAllWorkers({ db, config, queue, logger }, { threads: 1 }) : null;
   const app = createApp({ config, db, logger, queue });
   const server: Server = await new Promise((resolve) => {
     const s = app.listen(0, '127.0.0.1', () => resolve(s));
@@ -70,6 +70,7 @@ export async function startTestApp(env: Record<string, string> = {}, options: { 
       server.closeAllConnections();
       await new Promise<void>((resolve) => server.close(() => resolve()));
       await queue.stop();
+      await workers?.stop();
       await db.close();
       fs.rmSync(dataDir, { recursive: true, force: true });
     },
