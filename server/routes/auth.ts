@@ -7,6 +7,7 @@ import { Router, type NextFunction, type Request, type Response } from 'express'
 import type { AppDeps } from '../app.ts';
 import { auditContext } from '../auth/context.ts';
 import type { Auth } from '../auth/index.ts';
+import { withClaimScope } from '../auth/request-cache.ts';
 import { endSession, sessionCookieName, startSession } from '../auth/session.ts';
 import { badRequest } from '../errors.ts';
 import { recordAudit } from '../services/audit.ts';
@@ -51,9 +52,11 @@ export function authRouter({ db, config }: AppDeps, auth: Auth): Router {
       await startSession(req, user);
       res.redirect(303, safeReturnPath(body.RelayState) ?? '/');
     };
-    auth.passport.authenticate('saml', { session: false }, (err: Error | null, identity: VerifiedIdentity | false) => {
-      done(err, identity).catch(next);
-    })(req, res, next);
+    withClaimScope(() =>
+      auth.passport.authenticate('saml', { session: false }, (err: Error | null, identity: VerifiedIdentity | false) => {
+        done(err, identity).catch(next);
+      })(req, res, next),
+    );
   });
 
   router.get('/saml/metadata', (_req, res) => {
