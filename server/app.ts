@@ -8,7 +8,7 @@ import type { DbHandle } from './db/client.ts';
 import { authorizeApi } from './auth/authorize.ts';
 import { csrfProtection } from './auth/csrf.ts';
 import { createAuth } from './auth/index.ts';
-import { registeredRoutes } from './auth/route-list.ts';
+import { unlistedApiRoutes } from './auth/route-list.ts';
 import { LOCAL_IDP_MOUNT, localIdpRouter } from './dev/idp/router.ts';
 import { AppError } from './errors.ts';
 import type { Logger } from './logger.ts';
@@ -18,7 +18,6 @@ import { auditRouter } from './routes/audit.ts';
 import { authRouter } from './routes/auth.ts';
 import { healthRouter } from './routes/health.ts';
 import { meRouter } from './routes/me.ts';
-import { findPermission } from '@shared/permissions.ts';
 
 export interface AppDeps {
   config: Config;
@@ -38,7 +37,9 @@ export function createApp(deps: AppDeps): express.Express {
   const { config, logger } = deps;
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', config.trustProxy);
+  // One reverse proxy in front, not any number: trusting every X-Forwarded-For hop would let a client
+  // choose its own address (and so slip past the sign-in rate limit and into the audit trail).
+  app.set('trust proxy', config.trustProxy ? 1 : false);
 
   app.use(requestContext(logger));
   app.use(
@@ -87,10 +88,8 @@ export function createApp(deps: AppDeps): express.Express {
 
 /** An /api route missing from shared/permissions.ts is refused at run time; say so at start too. */
 function warnAboutUnlistedRoutes(app: express.Express, logger: Logger): void {
-  for (const route of registeredRoutes(app)) {
-    if (route.path.startsWith('/api/') && !findPermission(route.method, route.path)) {
-      logger.warn(route, 'API route missing from the permission table (shared/permissions.ts): it is refused');
-    }
+  for (const route of unlistedApiRoutes(app)) {
+    logger.warn(route, 'API route missing from the permission table (shared/permissions.ts): it is refused');
   }
 }
 

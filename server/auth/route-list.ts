@@ -1,5 +1,6 @@
 /** The method + path of every route an Express app registers, read from its router stack (Express 5, router 2). */
 import type express from 'express';
+import { findPermission, PERMISSIONS, type Permission } from '@shared/permissions.ts';
 
 interface Layer {
   rawPath?: unknown;
@@ -36,4 +37,9 @@ export function registeredRoutes(app: express.Express): RegisteredRoute[] {
   const out: RegisteredRoute[] = [];
   walk((app as unknown as { router: { stack: Layer[] } }).router.stack, '', out);
   return out;
+}
+
+/** /api routes an app registers that the permission table does not list (they are refused). */
+export function unlistedApiRoutes(app: express.Express, table: readonly Permission[] = PERMISSIONS): RegisteredRoute[] {
+  return registeredRoutes(app).filter((r) => (r.path === '/api' || r.path.startsWith('/api/')) && !findPermission(r.method, r.path, table));
 }
