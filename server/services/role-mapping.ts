@@ -4,6 +4,7 @@ import type { RoleMapping } from '@shared/api/auth.ts';
 import { ROLES, type Role } from '@shared/roles.ts';
 import type { Database } from '../db/client.ts';
 import { roleMappings } from '../db/schema.ts';
+import { unprocessable } from '../errors.ts';
 import { recordAudit, type AuditEventInput } from './audit.ts';
 
 export async function listRoleMappings(db: Database): Promise<RoleMapping[]> {
@@ -26,6 +27,8 @@ export async function replaceRoleMappings(
   audit: Omit<AuditEventInput, 'action' | 'detail'>,
 ): Promise<RoleMapping[]> {
   const unique = [...new Map(mappings.map((m) => [`${m.group}\u0000${m.role}`, m])).values()];
+  // Without a group granting admin, nobody could sign in as admin to repair the mapping.
+  if (!unique.some((m) => m.role === 'admin')) throw unprocessable('Keep at least one group that grants the admin role.');
   await db.transaction(async (tx) => {
     const before = await tx.select({ group: roleMappings.group, role: roleMappings.role }).from(roleMappings);
     await tx.delete(roleMappings);

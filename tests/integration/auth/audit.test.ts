@@ -135,6 +135,7 @@ describe('audit trail', () => {
     try {
       expect((await put([...current.mappings, { group: 'lw-analysts', role: 'trader' }, { group: 'lw-analysts', role: 'risk' }])).status).toBe(200);
       expect((await put([{ group: 'lw-analysts', role: 'superuser' }])).status).toBe(400);
+      expect((await put([{ group: 'lw-analysts', role: 'trader' }])).status).toBe(422);
       const analyst = new CookieJar();
       await signInAs(t, analyst, 'custom', { name: 'Ana Lyst', email: 'ana.lyst@nordvale.example', otherGroups: 'lw-analysts' });
       expect((await (await me(t, analyst)).json()).roles).toEqual(['trader', 'risk']);
