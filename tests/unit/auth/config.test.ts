@@ -1,3 +1,6 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { ConfigError, loadConfig, splitPemCertificates } from '../../../server/config.ts';
 
@@ -30,6 +33,15 @@ describe('sign-in settings', () => {
     const { auth } = loadConfig({ SAML_IDP_SSO_URL: 'https://idp.nordvale.example/sso', SAML_IDP_CERTS: two });
     expect(auth.idp?.certs).toHaveLength(2);
     expect(splitPemCertificates(two)[1]).toContain('QkJC');
+  });
+
+  it('reads the certificates from SAML_IDP_CERTS_FILE, and names a missing file', () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'liftwise-'));
+    const file = path.join(dir, 'idp.pem');
+    fs.writeFileSync(file, `${PEM('QUFB')}\n${PEM('QkJC')}\n`);
+    expect(loadConfig({ SAML_IDP_SSO_URL: 'https://idp.nordvale.example/sso', SAML_IDP_CERTS_FILE: file }).auth.idp?.certs).toHaveLength(2);
+    expect(problems({ SAML_IDP_SSO_URL: 'https://idp.nordvale.example/sso', SAML_IDP_CERTS_FILE: path.join(dir, 'missing.pem') })).toMatch(/SAML_IDP_CERTS_FILE/);
+    fs.rmSync(dir, { recursive: true });
   });
 
   it('refuses a real IdP without a certificate', () => {
