@@ -3,6 +3,7 @@
  * the dependencies are known to be installed.
  */
 import { spawn, spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -24,14 +25,26 @@ function mtime(file) {
   }
 }
 
-/** Installs npm dependencies when node_modules is missing or older than the lockfile. */
+/**
+ * Installs npm dependencies when node_modules is missing or was installed from another lockfile
+ * (compared by content, so a fresh checkout's file times do not matter). A node_modules that is
+ * a link to another checkout's is left alone.
+ */
 export function ensureDependencies() {
-  const lock = path.join(root, 'package-lock.json');
-  const marker = path.join(root, 'node_modules', '.package-lock.json');
-  if (fs.existsSync(marker) && mtime(marker) >= mtime(lock)) return;
+  const modules = path.join(root, 'node_modules');
+  if (fs.existsSync(modules) && fs.lstatSync(modules).isSymbolicLink()) return;
+  const lockHash = createHash('sha256').update(fs.readFileSync(path.join(root, 'package-lock.json'))).digest('hex');
+  const stamp = path.join(modules, '.liftwise-lock-sha256');
+  const installed = fs.existsSync(stamp) ? fs.readFileSync(stamp, 'utf8').trim() : null;
+  if (installed === lockHash) return;
+  if (installed === null && fs.existsSync(path.join(modules, '.package-lock.json')) && mtime(path.join(modules, '.package-lock.json')) >= mtime(path.join(root, 'package-lock.json'))) {
+    fs.writeFileSync(stamp, lockHash);
+    return;
+  }
   log('installing npm dependencies (npm ci) ...');
   const res = spawnSync('npm', ['ci', '--no-audit', '--no-fund'], { cwd: root, stdio: 'inherit' });
   if (res.status !== 0) throw new StepError('npm ci failed (see the output above)');
+  fs.writeFileSync(stamp, lockHash);
 }
 
 /** The newest modification time of any file below the given paths. */

@@ -5,14 +5,23 @@ import helmet from 'helmet';
 import { ZodError } from 'zod';
 import type { Config } from './config.ts';
 import type { DbHandle } from './db/client.ts';
+import { authorizeApi } from './auth/authorize.ts';
+import { csrfProtection } from './auth/csrf.ts';
+import { createAuth } from './auth/index.ts';
+import { unlistedApiRoutes } from './auth/route-list.ts';
+import { LOCAL_IDP_MOUNT, localIdpRouter } from './dev/idp/router.ts';
 import { AppError } from './errors.ts';
 import type { JobQueue } from './jobs/queue.ts';
 import type { Logger } from './logger.ts';
 import type { MailService } from './mail/index.ts';
 import { outboxRouter } from './routes/outbox.ts';
+import { adminRolesRouter } from './routes/admin-roles.ts';
 import { appInfoRouter } from './routes/app-info.ts';
+import { auditRouter } from './routes/audit.ts';
+import { authRouter } from './routes/auth.ts';
 import { healthRouter } from './routes/health.ts';
 import { runsRouter } from './routes/runs.ts';
+import { meRouter } from './routes/me.ts';
 
 export interface AppDeps {
   config: Config;
@@ -34,7 +43,9 @@ export function createApp(deps: AppDeps): express.Express {
   const { config, logger } = deps;
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', config.trustProxy);
+  // One reverse proxy in front, not any number: trusting every X-Forwarded-For hop would let a client
+  // choose its own address (and so slip past the sign-in rate limit and into the audit trail).
+  app.set('trust proxy', config.trustProxy ? 1 : false);
 
   app.use(requestContext(logger));
   app.use(
@@ -59,15 +70,35 @@ export function createApp(deps: AppDeps): express.Express {
   app.use(express.json({ limit: '1mb' }));
   app.use(express.urlencoded({ extended: false, limit: '1mb' }));
 
+  const auth = createAuth(deps);
+  // The stand-in identity provider: outside production, when no real one is configured.
+  if (auth.localIdp) app.use(LOCAL_IDP_MOUNT, localIdpRouter(auth.localIdp));
+  app.use(['/api', '/auth'], ...auth.session);
+  // The assertion consumer service is exempt from CSRF tokens: the IdP's signature protects it.
+  app.use('/auth', auth.rateLimit, csrfProtection(['/saml/acs']), authRouter(deps, auth));
+  // Every /api request passes the permission table (deny by default), then the CSRF check.
+  app.use('/api', authorizeApi(), csrfProtection([]));
+
   app.use('/api', healthRouter(deps));
   app.use('/api', appInfoRouter(deps));
   app.use('/api', runsRouter(deps));
   if (!config.isProduction) app.use('/api', outboxRouter(deps));
+  app.use('/api', meRouter(deps));
+  app.use('/api', auditRouter(deps));
+  app.use('/api', adminRolesRouter(deps));
 
   app.use('/api', (_req, _res, next) => next(new AppError(404, 'not_found', 'No such API route.')));
   if (config.serveClient) serveClient(app, config.clientDir);
   app.use(errorHandler);
+  warnAboutUnlistedRoutes(app, logger);
   return app;
+}
+
+/** An /api route missing from shared/permissions.ts is refused at run time; say so at start too. */
+function warnAboutUnlistedRoutes(app: express.Express, logger: Logger): void {
+  for (const route of unlistedApiRoutes(app)) {
+    logger.warn(route, 'API route missing from the permission table (shared/permissions.ts): it is refused');
+  }
 }
 
 function requestContext(logger: Logger): RequestHandler {
@@ -88,7 +119,7 @@ function requestContext(logger: Logger): RequestHandler {
 /** The built client on the same port; any non-API path falls back to index.html for the router. */
 function serveClient(app: express.Express, clientDir: string): void {
   app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
-  app.get(/^\/(?!api\/|auth\/).*/, (_req, res) => {
+  app.get(/^\/(?!api\/|auth\/|idp\/).*/, (_req, res) => {
     res.sendFile(path.join(clientDir, 'index.html'));
   });
 }

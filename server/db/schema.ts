@@ -12,6 +12,7 @@ import {
   index,
   inet,
   integer,
+  json,
   jsonb,
   pgEnum,
   pgTable,
@@ -22,6 +23,7 @@ import {
   timestamp,
   uniqueIndex,
   uuid,
+  varchar,
 } from 'drizzle-orm/pg-core';
 
 /** People who have signed in through the identity provider; roles are re-read at each sign-in. */
@@ -386,3 +388,34 @@ export const apiTokens = pgTable('api_tokens', {
   lastUsedAt: timestamp('last_used_at', { withTimezone: true }),
   revokedAt: timestamp('revoked_at', { withTimezone: true }),
 });
+/** Identity-provider group -> Liftwise role; admins edit it in the Admin screen. A group may grant several roles. */
+export const roleMappings = pgTable(
+  'role_mappings',
+  {
+    group: text('group').notNull(),
+    role: text('role').notNull(),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.group, t.role] })],
+);
+
+/**
+ * Sign-in requests sent to the identity provider and not yet answered: the response's
+ * InResponseTo must name one of them. Kept in the database so that every server instance
+ * agrees; a row is removed when its response is used, and ignored once older than the expiry.
+ */
+export const samlRequests = pgTable('saml_requests', {
+  id: text('id').primaryKey(),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+});
+
+/** express-session rows (connect-pg-simple's layout: sid, sess, expire). */
+export const sessions = pgTable(
+  'session',
+  {
+    sid: varchar('sid').primaryKey(),
+    sess: json('sess').notNull(),
+    expire: timestamp('expire', { precision: 6 }).notNull(),
+  },
+  (t) => [index('IDX_session_expire').on(t.expire)],
+);

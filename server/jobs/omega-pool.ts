@@ -63,7 +63,8 @@ export class OmegaPool {
   async run(task: OmegaTask): Promise<OmegaTaskResult> {
     const sent: OmegaTask = {
       ...task,
-      axes: { lat: ownBuffer(task.axes.lat), lon: ownBuffer(task.axes.lon), levels: ownBuffer(task.axes.levels) },
+      // The axes are shared by every task of a run: always send copies (they are small).
+      axes: { lat: task.axes.lat.slice(), lon: task.axes.lon.slice(), levels: task.axes.levels.slice() },
       z: ownBuffer(task.z),
       t: ownBuffer(task.t),
       w: task.w ? ownBuffer(task.w) : null,

@@ -4,9 +4,12 @@ import type { Readable } from 'node:stream';
 import { z } from 'zod';
 import type { AppDeps } from '../app.ts';
 import { AppError, badRequest } from '../errors.ts';
-import { acceptUpload, getRun, listRuns, type RunsDeps } from '../services/runs.ts';
+import { auditContext, currentUser } from '../auth/context.ts';
+import { retryMember } from '../services/pipeline.ts';
+import { acceptUpload, getRun, listRunMembers, listRuns, type RunsDeps } from '../services/runs.ts';
 
 const idParam = z.object({ id: z.uuid({ message: 'run id must be a UUID' }) });
+const memberParam = idParam.extend({ member: z.coerce.number().int().min(0).max(9999) });
 
 /** GET /api/runs, GET /api/runs/:id, POST /api/runs (multipart, field "file"). */
 export function runsRouter(deps: AppDeps): Router {
@@ -23,9 +26,23 @@ export function runsRouter(deps: AppDeps): Router {
   });
 
   router.post('/runs', async (req, res) => {
-    const userId = (req as { user?: { id?: string } }).user?.id ?? null;
-    const result = await receiveSingleFile(req, (stream, fileName) => acceptUpload(services, stream, { fileName, userId }));
+    const user = currentUser(req);
+    const audit = auditContext(req);
+    const result = await receiveSingleFile(req, (stream, fileName) => acceptUpload(services, stream, { fileName, userId: user.id, audit }));
     res.status(result.duplicate ? 200 : 201).json(result);
+  });
+
+  router.get('/runs/:id/members', async (req, res) => {
+    const { id } = idParam.parse(req.params);
+    res.json({ members: await listRunMembers(deps.db, id) });
+  });
+
+  router.post('/runs/:id/members/:member/retry', async (req, res) => {
+    const { id, member } = memberParam.parse(req.params);
+    if (!(await retryMember(services, id, member, auditContext(req)))) {
+      throw new AppError(409, 'not_failed', 'Only a member that failed can be retried.');
+    }
+    res.status(202).json({ retried: { runId: id, member } });
   });
 
   return router;

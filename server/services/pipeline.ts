@@ -14,6 +14,7 @@ import type { OmegaPool } from '../jobs/omega-pool.ts';
 import { QUEUE_NAMES, type JobHandler } from '../jobs/queue.ts';
 import { QgInputError } from '../science/qg/errors.ts';
 import { hasOmega, readOmegaPart, writeOmegaParts, OMEGA_PARTS, type OmegaPart } from './derived-store.ts';
+import { recordAudit, type AuditEventInput } from './audit.ts';
 import type { RunsDeps } from './runs.ts';
 import { runFilePath } from './storage.ts';
 
@@ -220,12 +221,21 @@ async function writeEnsembleMean(deps: RunsDeps, run: RunRow, members: number[])
 }
 
 /** A failed member goes back to waiting and gets a fresh job. */
-export async function retryMember(deps: RunsDeps, runId: string, member: number): Promise<boolean> {
-  const updated = await deps.db.db
-    .update(runMembers)
-    .set({ state: 'waiting', message: null, progress: 0, updatedAt: new Date() })
-    .where(and(eq(runMembers.runId, runId), eq(runMembers.member, member), eq(runMembers.state, 'failed')))
-    .returning();
+export async function retryMember(
+  deps: RunsDeps,
+  runId: string,
+  member: number,
+  audit: Pick<AuditEventInput, 'actorId' | 'actorLabel' | 'requestId' | 'clientAddress'>,
+): Promise<boolean> {
+  const updated = await deps.db.db.transaction(async (tx) => {
+    const rows = await tx
+      .update(runMembers)
+      .set({ state: 'waiting', message: null, progress: 0, updatedAt: new Date() })
+      .where(and(eq(runMembers.runId, runId), eq(runMembers.member, member), eq(runMembers.state, 'failed')))
+      .returning();
+    if (rows.length) await recordAudit(tx, { ...audit, action: 'run.member_retry', objectType: 'run', objectId: runId, detail: { member } });
+    return rows;
+  });
   if (updated.length === 0) return false;
   await deps.db.db.update(runs).set({ message: null, updatedAt: new Date() }).where(eq(runs.id, runId));
   await deps.queue.send(QUEUE_NAMES.processMember, { runId, member } satisfies MemberJob);

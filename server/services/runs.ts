@@ -6,12 +6,13 @@ import { desc, eq, inArray } from 'drizzle-orm';
 import type { Run } from '@shared/api/runs.ts';
 import type { Config } from '../config.ts';
 import type { DbHandle } from '../db/client.ts';
-import { runs, type RunGrid } from '../db/schema.ts';
+import { runMembers, runs, type RunGrid } from '../db/schema.ts';
 import { AppError, notFound } from '../errors.ts';
 import { IngestError, openRun, sniffFormat, type RunInfo } from '../ingest/index.ts';
 import type { JobHandler, JobQueue, RunJob } from '../jobs/queue.ts';
 import { QUEUE_NAMES } from '../jobs/queue.ts';
 import type { Logger } from '../logger.ts';
+import { recordAudit, type AuditEventInput } from './audit.ts';
 import { startDiagnosis } from './pipeline.ts';
 import { discardUpload, keepUpload, runFilePath, streamToStorage } from './storage.ts';
 
@@ -52,13 +53,14 @@ export async function getRun(db: DbHandle, id: string): Promise<Run> {
 export async function acceptUpload(
   deps: RunsDeps,
   source: Readable,
-  meta: { fileName: string; userId: string | null },
+  meta: { fileName: string; userId: string | null; audit: Pick<AuditEventInput, 'actorId' | 'actorLabel' | 'requestId' | 'clientAddress'> },
 ): Promise<{ run: Run; duplicate: boolean }> {
   const { db, config } = deps;
   const upload = await streamToStorage(source, config.storageDir, config.uploadLimitBytes);
   const existing = await findByChecksum(db, upload.checksum);
   if (existing) {
     await discardUpload(upload);
+    await recordAudit(db.db, { ...meta.audit, action: 'run.upload_duplicate', objectType: 'run', objectId: existing.id, detail: { checksum: upload.checksum } });
     return { run: toRunDto(existing), duplicate: true };
   }
   let format: string;
@@ -66,15 +68,30 @@ export async function acceptUpload(
     format = await sniffFormat(upload.tempPath);
   } catch (err) {
     await discardUpload(upload);
-    if (err instanceof IngestError) throw new AppError(422, 'not_a_model_run', err.message);
+    if (err instanceof IngestError) {
+      await recordAudit(db.db, { ...meta.audit, action: 'run.upload_refused', detail: { reason: err.message, sizeBytes: upload.sizeBytes } });
+      throw new AppError(422, 'not_a_model_run', err.message);
+    }
     throw err;
   }
   await keepUpload(upload, config.storageDir);
-  const [inserted] = await db.db
-    .insert(runs)
-    .values({ checksum: upload.checksum, sizeBytes: upload.sizeBytes, fileName: cleanFileName(meta.fileName), format, uploadedBy: meta.userId })
-    .onConflictDoNothing({ target: runs.checksum })
-    .returning();
+  const inserted = await db.db.transaction(async (tx) => {
+    const [row] = await tx
+      .insert(runs)
+      .values({ checksum: upload.checksum, sizeBytes: upload.sizeBytes, fileName: cleanFileName(meta.fileName), format, uploadedBy: meta.userId })
+      .onConflictDoNothing({ target: runs.checksum })
+      .returning();
+    if (row) {
+      await recordAudit(tx, {
+        ...meta.audit,
+        action: 'run.upload',
+        objectType: 'run',
+        objectId: row.id,
+        detail: { checksum: upload.checksum, sizeBytes: upload.sizeBytes, format, fileName: row.fileName },
+      });
+    }
+    return row;
+  });
   if (!inserted) {
     // A concurrent upload of the same file won the race.
     return { run: toRunDto((await findByChecksum(db, upload.checksum))!), duplicate: true };
@@ -176,4 +193,9 @@ export function readRunHandler(deps: RunsDeps): JobHandler<RunJob> {
 export async function runsByIds(db: DbHandle, ids: string[]): Promise<Run[]> {
   if (ids.length === 0) return [];
   return (await db.db.select().from(runs).where(inArray(runs.id, ids))).map(toRunDto);
+}
+
+export async function listRunMembers(db: DbHandle, runId: string) {
+  const rows = await db.db.select().from(runMembers).where(eq(runMembers.runId, runId)).orderBy(runMembers.member);
+  return rows.map((m) => ({ member: m.member, state: m.state, progress: m.progress, message: m.message, attempts: m.attempts, updatedAt: m.updatedAt.toISOString() }));
 }

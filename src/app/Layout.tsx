@@ -1,6 +1,9 @@
 import { useQuery } from '@tanstack/react-query';
 import { NavLink, Outlet } from 'react-router-dom';
+import { canCall } from '@shared/permissions.ts';
 import { Icon, type IconName } from '@/components/Icon.tsx';
+import { meQuery } from '@/features/auth/api.ts';
+import { UserMenu } from '@/features/auth/UserMenu.tsx';
 import { appInfoQuery } from './app-info.ts';
 import { useTheme } from './theme.tsx';
 
@@ -9,6 +12,8 @@ interface NavItem {
   label: string;
   icon: IconName;
   devOnly?: boolean;
+  /** shown only to those the permission table lets read this API route */
+  needs?: string;
 }
 
 export const NAV_ITEMS: NavItem[] = [
@@ -16,7 +21,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/scenarios', label: 'Scenarios', icon: 'scenarios' },
   { to: '/regime-calls', label: 'Regime calls', icon: 'call' },
   { to: '/snapshots', label: 'Snapshots', icon: 'seal' },
-  { to: '/admin', label: 'Admin', icon: 'admin' },
+  { to: '/admin', label: 'Admin', icon: 'admin', needs: '/api/admin/role-mappings' },
   { to: '/outbox', label: 'Outbox', icon: 'outbox', devOnly: true },
 ];
 
@@ -36,7 +41,9 @@ function Mark() {
 export function Layout() {
   const { theme, toggle } = useTheme();
   const info = useQuery(appInfoQuery);
-  const items = NAV_ITEMS.filter((item) => !item.devOnly || info.data?.devTools);
+  const me = useQuery(meQuery);
+  const roles = me.data?.roles ?? null;
+  const items = NAV_ITEMS.filter((item) => (!item.devOnly || info.data?.devTools) && (!item.needs || canCall('GET', item.needs, roles)));
   return (
     <div className="flex h-full">
       <nav aria-label="Screens" className="flex w-48 shrink-0 flex-col border-r border-line bg-surface-raised">
@@ -66,6 +73,7 @@ export function Layout() {
       <div className="flex min-w-0 flex-1 flex-col">
         <div className="flex h-11 shrink-0 items-center justify-between gap-3 border-b border-line bg-surface-raised px-4" id="top-bar">
           <div id="top-bar-context" className="flex min-w-0 items-center gap-3" />
+          <div className="flex items-center gap-2">
           <button
             type="button"
             onClick={toggle}
@@ -75,6 +83,8 @@ export function Layout() {
             <Icon name={theme === 'dark' ? 'sun' : 'moon'} />
             <span className="text-xs">{theme === 'dark' ? 'Light' : 'Dark'}</span>
           </button>
+          <UserMenu />
+          </div>
         </div>
         <main className="min-h-0 flex-1 overflow-auto p-4">
           <Outlet />

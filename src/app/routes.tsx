@@ -9,13 +9,18 @@ import { ScenariosPage } from '@/features/scenarios/ScenariosPage.tsx';
 import { SnapshotsPage } from '@/features/snapshots/SnapshotsPage.tsx';
 import { Layout } from './Layout.tsx';
 import { NotFoundPage } from './NotFoundPage.tsx';
+import { RequireAccess, RequireSignIn } from './RequireSignIn.tsx';
 
 /** The route table: one entry per screen of PRODUCT.md. */
 export const routes: RouteObject[] = [
   { path: '/sign-in', element: <SignInPage /> },
   {
     path: '/',
-    element: <Layout />,
+    element: (
+      <RequireSignIn>
+        <Layout />
+      </RequireSignIn>
+    ),
     children: [
       { index: true, element: <Navigate to="/runs" replace /> },
       { path: 'runs', element: <RunsPage /> },
@@ -23,7 +28,14 @@ export const routes: RouteObject[] = [
       { path: 'scenarios', element: <ScenariosPage /> },
       { path: 'regime-calls', element: <RegimeCallsPage /> },
       { path: 'snapshots', element: <SnapshotsPage /> },
-      { path: 'admin', element: <AdminPage /> },
+      {
+        path: 'admin',
+        element: (
+          <RequireAccess path="/api/admin/role-mappings">
+            <AdminPage />
+          </RequireAccess>
+        ),
+      },
       { path: 'outbox', element: <OutboxPage /> },
       { path: '*', element: <NotFoundPage /> },
     ],

@@ -1,12 +1,12 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { and, eq } from 'drizzle-orm';
+import { and, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateDemo, DEFAULT_CONFIG, type Manifest } from '../../scripts/demo/generate.ts';
-import { runDiagnostics, runMembers } from '../../server/db/schema.ts';
+import { runDiagnostics, runMembers, runs } from '../../server/db/schema.ts';
 import { hasOmega, readOmegaPart } from '../../server/services/derived-store.ts';
-import { startTestApp, type TestApp } from './support.ts';
+import { signIn, startTestApp, type Client, type TestApp } from './support.ts';
 
 /** A small synthetic market (coarse grid, few steps, three members) so the whole chain runs in seconds. */
 const SMALL = {
@@ -15,21 +15,24 @@ const SMALL = {
   ensembleDomain: { latSouth: 50, latNorth: 70, lonWest: -6, lonEast: 30, resolution: 2 },
   steps: [0, 6, 12, 18, 24, 30],
   members: 3,
-  seed: 'pipeline-test',
+  // A seed of its own per process: the test database may still hold the runs of an earlier process.
+  seed: `pipeline-test-${process.pid}`,
 };
 
-async function upload(t: TestApp, file: string): Promise<{ run: { id: string } }> {
+let met: Client;
+
+async function upload(file: string): Promise<{ run: { id: string } }> {
   const form = new FormData();
   form.append('file', new Blob([fs.readFileSync(file)]), path.basename(file));
-  const res = await fetch(`${t.baseUrl}/api/runs`, { method: 'POST', body: form });
+  const res = await met.fetch('/api/runs', { method: 'POST', body: form });
   expect(res.status).toBe(201);
   return res.json();
 }
 
-async function waitReady(t: TestApp, id: string) {
+async function waitReady(id: string) {
   const until = Date.now() + 60_000;
   for (;;) {
-    const { run } = await (await fetch(`${t.baseUrl}/api/runs/${id}`)).json();
+    const { run } = await (await met.fetch(`/api/runs/${id}`)).json();
     if (run.state === 'ready' || run.state === 'rejected') return run;
     if (Date.now() > until) throw new Error(`run stuck in ${run.state} at ${run.progress}`);
     await new Promise((r) => setTimeout(r, 250));
@@ -44,6 +47,9 @@ describe('processing chain: upload -> read -> QG diagnosis per member and step -
   beforeAll(async () => {
     ({ manifest } = await generateDemo({ outDir: out, config: SMALL, log: () => {} }));
     t = await startTestApp();
+    // The test database may still hold these files' runs from an earlier process: start clean.
+    await t.db.db.delete(runs).where(inArray(runs.checksum, manifest.files.map((f) => f.sha256)));
+    met = await signIn(t, 'meteorologist');
   }, 120_000);
   afterAll(async () => {
     await t.close();
@@ -52,8 +58,8 @@ describe('processing chain: upload -> read -> QG diagnosis per member and step -
 
   it('a deterministic GRIB2 run is diagnosed at every step, stored, and becomes ready', async () => {
     const file = manifest.files.find((f) => f.format === 'grib2')!;
-    const { run } = await upload(t, path.join(out, file.path));
-    const done = await waitReady(t, run.id);
+    const { run } = await upload(path.join(out, file.path));
+    const done = await waitReady(run.id);
     expect(done).toMatchObject({ state: 'ready', progress: 1, format: 'grib2', members: [0], steps: SMALL.steps });
     const rows = await t.db.db.select().from(runDiagnostics).where(eq(runDiagnostics.runId, run.id));
     expect(rows.map((r) => r.step).sort((a, b) => a - b)).toEqual(SMALL.steps);
@@ -74,8 +80,8 @@ describe('processing chain: upload -> read -> QG diagnosis per member and step -
 
   it('an ensemble NetCDF-4 run is diagnosed member by member, and the ensemble mean is stored', async () => {
     const file = manifest.files.find((f) => f.format === 'netcdf4')!;
-    const { run } = await upload(t, path.join(out, file.path));
-    const done = await waitReady(t, run.id);
+    const { run } = await upload(path.join(out, file.path));
+    const done = await waitReady(run.id);
     expect(done).toMatchObject({ state: 'ready', isEnsemble: true, members: [0, 1, 2] });
     const members = await t.db.db.select().from(runMembers).where(eq(runMembers.runId, run.id));
     expect(members.map((m) => [m.member, m.state])).toEqual([

@@ -1,12 +1,13 @@
 /**
  * Starts the real app on an ephemeral loopback port against the test database
- * (DATABASE_URL, set by scripts/test.mjs), migrated.
+ * (DATABASE_URL, set by scripts/test.mjs), migrated, with PUBLIC_URL set to that port so the
+ * sign-in round trip through the local identity provider works; and a signed-in client.
  */
 import fs from 'node:fs';
+import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
-import type { Server } from 'node:http';
 import { createApp } from '../../server/app.ts';
 import { loadConfig, type Config } from '../../server/config.ts';
 import { createDb, type DbHandle } from '../../server/db/client.ts';
@@ -14,6 +15,7 @@ import { applyMigrations } from '../../server/db/migrate.ts';
 import { startAllWorkers } from '../../server/jobs/handlers.ts';
 import { createQueue, type JobQueue } from '../../server/jobs/queue.ts';
 import { createLogger } from '../../server/logger.ts';
+import { CookieJar, send, signInAs } from './auth/harness.ts';
 
 export interface TestApp {
   baseUrl: string;
@@ -37,18 +39,22 @@ export const inertQueue: JobQueue = {
 };
 
 /**
- * The app with a real queue and, unless `workers: false`, in-process workers; DATA_DIR is a fresh
- * temporary folder (uploads, keys) removed at close.
+ * The app with a real queue and, unless `workers: false`, in-process workers (one pool thread);
+ * DATA_DIR is a fresh temporary folder (uploads, keys, caught mail) removed at close.
  */
 export async function startTestApp(env: Record<string, string> = {}, options: { workers?: boolean } = {}): Promise<TestApp> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'liftwise-test-'));
+  const server = http.createServer();
+  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
+  const baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
   const config = loadConfig({
     NODE_ENV: 'test',
     DATABASE_URL: testDatabaseUrl(),
     LOG_LEVEL: 'silent',
-    PORT: '8080',
     SERVE_CLIENT: 'false',
     DATA_DIR: dataDir,
+    PUBLIC_URL: baseUrl,
+    AUTH_RATE_LIMIT_PER_MINUTE: '10000',
     ...env,
   });
   const logger = createLogger('silent');
@@ -56,13 +62,9 @@ export async function startTestApp(env: Record<string, string> = {}, options: { 
   await applyMigrations(db.db, db.pool);
   const queue = await createQueue(config.databaseUrl, logger);
   const workers = options.workers !== false ? await startAllWorkers({ db, config, queue, logger }, { threads: 1 }) : null;
-  const app = createApp({ config, db, logger, queue });
-  const server: Server = await new Promise((resolve) => {
-    const s = app.listen(0, '127.0.0.1', () => resolve(s));
-  });
-  const { port } = server.address() as AddressInfo;
+  server.on('request', createApp({ config, db, logger, queue }));
   return {
-    baseUrl: `http://127.0.0.1:${port}`,
+    baseUrl,
     config,
     db,
     queue,
@@ -73,6 +75,29 @@ export async function startTestApp(env: Record<string, string> = {}, options: { 
       await workers?.stop();
       await db.close();
       fs.rmSync(dataDir, { recursive: true, force: true });
+    },
+  };
+}
+
+export interface Client {
+  /** fetch relative to the app with the session cookie and, on writes, the CSRF token */
+  fetch(pathAndQuery: string, init?: RequestInit): Promise<Response>;
+  csrfToken: string;
+}
+
+/** Signs a demo person in through the local identity provider (server/dev/idp/people.ts keys). */
+export async function signIn(t: TestApp, personKey: 'meteorologist' | 'trader' | 'risk' | 'admin' | 'meteorologist-trader'): Promise<Client> {
+  const jar = new CookieJar();
+  const acs = await signInAs({ ...t, app: null as never }, jar, personKey);
+  if (acs.status >= 400) throw new Error(`sign-in as ${personKey} failed: ${acs.status}`);
+  const me = await send(jar, `${t.baseUrl}/api/me`);
+  const { csrfToken } = (await me.json()) as { csrfToken: string };
+  return {
+    csrfToken,
+    fetch: (pathAndQuery, init = {}) => {
+      const headers = new Headers(init.headers);
+      if (init.method && init.method !== 'GET') headers.set('X-CSRF-Token', csrfToken);
+      return send(jar, `${t.baseUrl}${pathAndQuery}`, { ...init, headers });
     },
   };
 }

@@ -46,6 +46,11 @@ beforeEach(() => {
       }
       if (url.endsWith('/api/runs')) return new Response(JSON.stringify({ runs: [] }), { status: 200 });
       if (url.endsWith(`/api/runs/${RUN.id}`)) return new Response(JSON.stringify({ run: RUN }), { status: 200 });
+      if (url.endsWith('/api/me')) {
+        const me = { id: 'u1', name: 'Anders Lund', email: 'anders.lund@nordvale.example', roles: ['meteorologist', 'trader', 'risk', 'admin'], csrfToken: 'token' };
+        return new Response(JSON.stringify(me), { status: 200 });
+      }
+      if (url.endsWith('/api/admin/role-mappings')) return new Response(JSON.stringify({ mappings: [] }), { status: 200 });
       return new Response(JSON.stringify({ error: { code: 'not_found', message: 'x' } }), { status: 404 });
     }),
   );
@@ -78,6 +83,7 @@ describe('every screen of the route table renders', () => {
   });
 
   it('the sign-in screen has one button to the identity provider', async () => {
+    vi.mocked(fetch).mockImplementation(async () => new Response(JSON.stringify({ error: { code: 'unauthorized', message: 'Sign in first.' } }), { status: 401 }));
     renderAt('/sign-in');
     const link = await screen.findByRole('link', { name: 'Sign in' });
     expect(link).toHaveAttribute('href', '/auth/saml/login');

@@ -1,4 +1,5 @@
 import { EmptyState, PageHeader } from '@/components/Page.tsx';
+import { RoleMappingSection } from './RoleMappingSection.tsx';
 
 export function AdminPage() {
   return (
@@ -8,9 +9,7 @@ export function AdminPage() {
         <EmptyState icon="admin" title="No regions loaded">
           Hydro catchments and solar zones (GeoJSON with plant parameters) will be listed here with a map preview.
         </EmptyState>
-        <EmptyState icon="admin" title="No role mapping">
-          Identity-provider groups and the Liftwise roles they grant will be listed here.
-        </EmptyState>
+        <RoleMappingSection />
       </div>
     </div>
   );

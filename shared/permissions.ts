@@ -1,0 +1,71 @@
+/**
+ * Who may call which API route: the one table the server's authorization middleware enforces
+ * and the client reads to hide what a role cannot do. A route missing here is refused (deny by
+ * default), so every new /api route adds its line.
+ *
+ *   'public'     anyone, signed in or not
+ *   'signed-in'  any signed-in person, whatever their roles
+ *   Role[]       signed-in people holding at least one of these roles
+ */
+import type { Role } from './roles.ts';
+
+export type HttpMethod = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
+export type Access = 'public' | 'signed-in' | readonly Role[];
+
+export interface Permission {
+  method: HttpMethod;
+  /** Express-style path below the site root: literal segments and `:name` parameters */
+  path: string;
+  access: Access;
+}
+
+export const PERMISSIONS: readonly Permission[] = [
+  { method: 'GET', path: '/api/health', access: 'public' },
+  { method: 'GET', path: '/api/app-info', access: 'public' },
+  { method: 'GET', path: '/api/me', access: 'signed-in' },
+  { method: 'GET', path: '/api/audit', access: ['risk', 'admin'] },
+  { method: 'GET', path: '/api/audit/verify', access: ['risk', 'admin'] },
+  { method: 'GET', path: '/api/admin/role-mappings', access: ['admin'] },
+  { method: 'PUT', path: '/api/admin/role-mappings', access: ['admin'] },
+  { method: 'GET', path: '/api/runs', access: 'signed-in' },
+  { method: 'GET', path: '/api/runs/:id', access: 'signed-in' },
+  { method: 'POST', path: '/api/runs', access: ['meteorologist'] },
+  { method: 'GET', path: '/api/runs/:id/members', access: 'signed-in' },
+  { method: 'POST', path: '/api/runs/:id/members/:member/retry', access: ['meteorologist'] },
+  { method: 'GET', path: '/api/dev/outbox', access: 'signed-in' },
+];
+
+function segments(path: string): string[] {
+  return path.split('/').filter(Boolean);
+}
+
+/** Whether `pattern` (with :params) matches the concrete `path`. */
+export function pathMatches(pattern: string, path: string): boolean {
+  const p = segments(pattern);
+  const s = segments(path);
+  if (p.length !== s.length) return false;
+  return p.every((part, i) => (part.startsWith(':') ? s[i].length > 0 : part === s[i]));
+}
+
+/** The table's entry for a request, or undefined (refused). HEAD is answered like GET. */
+export function findPermission(method: string, path: string, table: readonly Permission[] = PERMISSIONS): Permission | undefined {
+  const m = method.toUpperCase() === 'HEAD' ? 'GET' : method.toUpperCase();
+  const exact = table.find((e) => e.method === m && !e.path.includes(':') && pathMatches(e.path, path));
+  return exact ?? table.find((e) => e.method === m && pathMatches(e.path, path));
+}
+
+export type Decision = 'allow' | 'unauthenticated' | 'forbidden';
+
+/** What the table says for someone with `roles` (null: signed out). */
+export function decide(access: Access, roles: readonly Role[] | null): Decision {
+  if (access === 'public') return 'allow';
+  if (roles === null) return 'unauthenticated';
+  if (access === 'signed-in') return 'allow';
+  return access.some((r) => roles.includes(r)) ? 'allow' : 'forbidden';
+}
+
+/** For the client: may someone with `roles` call this route? */
+export function canCall(method: HttpMethod, path: string, roles: readonly Role[] | null): boolean {
+  const entry = findPermission(method, path);
+  return entry !== undefined && decide(entry.access, roles) === 'allow';
+}
