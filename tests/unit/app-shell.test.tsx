@@ -36,7 +36,10 @@ const RUN = {
   updatedAt: '2026-12-01T05:01:00.000Z',
 };
 
+let currentRoles: string[] = [];
+
 beforeEach(() => {
+  currentRoles = ['meteorologist', 'trader', 'risk', 'admin'];
   vi.stubGlobal(
     'fetch',
     vi.fn(async (input: RequestInfo | URL) => {
@@ -47,7 +50,7 @@ beforeEach(() => {
       if (url.endsWith('/api/runs')) return new Response(JSON.stringify({ runs: [] }), { status: 200 });
       if (url.endsWith(`/api/runs/${RUN.id}`)) return new Response(JSON.stringify({ run: RUN }), { status: 200 });
       if (url.endsWith('/api/me')) {
-        const me = { id: 'u1', name: 'Anders Lund', email: 'anders.lund@nordvale.example', roles: ['meteorologist', 'trader', 'risk', 'admin'], csrfToken: 'token' };
+        const me = { id: 'u1', name: 'Anders Lund', email: 'anders.lund@nordvale.example', roles: currentRoles, csrfToken: 'token' };
         return new Response(JSON.stringify(me), { status: 200 });
       }
       if (url.endsWith('/api/admin/role-mappings')) return new Response(JSON.stringify({ mappings: [] }), { status: 200 });
@@ -101,6 +104,13 @@ describe('every screen of the route table renders', () => {
 });
 
 describe('the Runs screen', () => {
+  it('hides the upload panel from a trader, who cannot upload', async () => {
+    currentRoles = ['trader'];
+    renderAt('/runs');
+    expect(await screen.findByText(/uploaded by the desk meteorologists/)).toBeInTheDocument();
+    expect(screen.queryByRole('button', { name: 'Choose file…' })).toBeNull();
+  });
+
   it('shows the upload panel with a keyboard-reachable file button', async () => {
     renderAt('/runs');
     expect(await screen.findByRole('button', { name: 'Choose file…' })).toBeInTheDocument();

@@ -4,6 +4,7 @@ import type { Run } from '@shared/api/runs.ts';
 import { EmptyState, PageHeader } from '@/components/Page.tsx';
 import { RunStateBadge } from '@/components/RunState.tsx';
 import { formatBytes, formatCycle } from '@/lib/format.ts';
+import { useCan } from '@/lib/session.ts';
 import { runListQuery } from './api.ts';
 import { UploadPanel } from './UploadPanel.tsx';
 
@@ -15,17 +16,20 @@ function gridText(run: Run): string {
 
 export function RunsPage() {
   const runs = useQuery(runListQuery());
+  const canUpload = useCan('POST', '/api/runs');
   return (
     <div className="flex flex-col gap-4">
       <PageHeader title="Runs" subtitle="Every uploaded model run with its model, cycle, members, state and progress." />
-      <UploadPanel />
+      {canUpload ? <UploadPanel /> : null}
       {runs.isError ? (
         <p role="alert" className="text-caution">
           The runs could not be loaded: {runs.error.message}
         </p>
       ) : runs.data && runs.data.length === 0 ? (
         <EmptyState icon="runs" title="No model runs yet">
-          Upload a GRIB2 or NetCDF run above; it will be listed here with its processing state.
+          {canUpload
+            ? 'Upload a GRIB2 or NetCDF run above; it will be listed here with its processing state.'
+            : 'Runs uploaded by the desk meteorologists will be listed here with their processing state.'}
         </EmptyState>
       ) : (
         <div className="overflow-x-auto rounded-md border border-line bg-surface-raised">
