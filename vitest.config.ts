@@ -13,6 +13,7 @@ const alias = {
  *  - client:      React components in happy-dom
  *  - reference:   checks against published values and reference tools (ecCodes, netCDF tools, SciPy)
  *  - integration: real PostgreSQL, real HTTP through createApp, real SMTP on loopback
+ *  - e2e:         a real browser (Debian Chromium through playwright-core) against the built client
  */
 export default defineConfig({
   resolve: { alias },
@@ -44,6 +45,17 @@ export default defineConfig({
           include: ['tests/integration/**/*.test.ts'],
           testTimeout: 60_000,
           hookTimeout: 60_000,
+          fileParallelism: false,
+        },
+      },
+      {
+        resolve: { alias },
+        test: {
+          name: 'e2e',
+          environment: 'node',
+          include: ['tests/e2e/**/*.test.ts'],
+          testTimeout: 120_000,
+          hookTimeout: 120_000,
           fileParallelism: false,
         },
       },

@@ -27,6 +27,7 @@ const REFERENCE_TOOLS = [
     packages: ['python3-numpy', 'python3-scipy', 'python3-eccodes'],
     present: pythonHas('numpy, scipy.sparse.linalg, eccodes'),
   },
+  { label: 'Chromium for the browser tests', packages: ['chromium'], present: () => fs.existsSync('/usr/bin/chromium') },
 ];
 
 async function resetTestDatabase(url) {

@@ -9,6 +9,14 @@ import { retryMember } from '../services/pipeline.ts';
 import { acceptUpload, getRun, listRunMembers, listRuns, type RunsDeps } from '../services/runs.ts';
 
 const idParam = z.object({ id: z.uuid({ message: 'run id must be a UUID' }) });
+/** Optional form field "model", sent before the file: the desk's name for the model when the file's own is unhelpful. */
+const modelField = z
+  .string()
+  .trim()
+  .max(40, 'the model name is at most 40 characters')
+  .regex(/^[\w .+-]*$/, 'the model name may hold letters, digits, spaces and . + - _')
+  .optional()
+  .transform((v) => (v ? v : undefined));
 const memberParam = idParam.extend({ member: z.coerce.number().int().min(0).max(9999) });
 
 /** GET /api/runs, GET /api/runs/:id, POST /api/runs (multipart, field "file"). */
@@ -28,7 +36,9 @@ export function runsRouter(deps: AppDeps): Router {
   router.post('/runs', async (req, res) => {
     const user = currentUser(req);
     const audit = auditContext(req);
-    const result = await receiveSingleFile(req, (stream, fileName) => acceptUpload(services, stream, { fileName, userId: user.id, audit }));
+    const result = await receiveSingleFile(req, (stream, fileName, fields) =>
+      acceptUpload(services, stream, { fileName, userId: user.id, audit, model: modelField.parse(fields.model) }),
+    );
     res.status(result.duplicate ? 200 : 201).json(result);
   });
 
@@ -48,8 +58,8 @@ export function runsRouter(deps: AppDeps): Router {
   return router;
 }
 
-/** Streams the one file of a multipart request into `handle`; other parts are ignored. */
-function receiveSingleFile<T>(req: Request, handle: (stream: Readable, fileName: string) => Promise<T>): Promise<T> {
+/** Streams the one file of a multipart request into `handle`, with the text fields sent before it; other parts are ignored. */
+function receiveSingleFile<T>(req: Request, handle: (stream: Readable, fileName: string, fields: Record<string, string>) => Promise<T>): Promise<T> {
   return new Promise<T>((resolve, reject) => {
     if (!req.is('multipart/form-data')) {
       reject(badRequest('Send the file as multipart/form-data in a field named "file".'));
@@ -63,12 +73,22 @@ function receiveSingleFile<T>(req: Request, handle: (stream: Readable, fileName:
       return;
     }
     let work: Promise<T> | null = null;
+    const fields: Record<string, string> = {};
+    bb.on('field', (name, value) => {
+      if (!work) fields[name] = value;
+    });
     bb.on('file', (field, stream, info) => {
       if (field !== 'file' || work) {
         stream.resume();
         return;
       }
-      work = handle(stream, info.filename ?? 'upload');
+      try {
+        work = handle(stream, info.filename ?? 'upload', fields);
+      } catch (err) {
+        stream.resume();
+        reject(err);
+        return;
+      }
       work.then(resolve, (err) => {
         stream.resume();
         reject(err);

@@ -53,7 +53,13 @@ export async function getRun(db: DbHandle, id: string): Promise<Run> {
 export async function acceptUpload(
   deps: RunsDeps,
   source: Readable,
-  meta: { fileName: string; userId: string | null; audit: Pick<AuditEventInput, 'actorId' | 'actorLabel' | 'requestId' | 'clientAddress'> },
+  meta: {
+    fileName: string;
+    userId: string | null;
+    audit: Pick<AuditEventInput, 'actorId' | 'actorLabel' | 'requestId' | 'clientAddress'>;
+    /** the desk's name for the model, overriding the file's */
+    model?: string;
+  },
 ): Promise<{ run: Run; duplicate: boolean }> {
   const { db, config } = deps;
   const upload = await streamToStorage(source, config.storageDir, config.uploadLimitBytes);
@@ -78,7 +84,14 @@ export async function acceptUpload(
   const inserted = await db.db.transaction(async (tx) => {
     const [row] = await tx
       .insert(runs)
-      .values({ checksum: upload.checksum, sizeBytes: upload.sizeBytes, fileName: cleanFileName(meta.fileName), format, uploadedBy: meta.userId })
+      .values({
+        checksum: upload.checksum,
+        sizeBytes: upload.sizeBytes,
+        fileName: cleanFileName(meta.fileName),
+        format,
+        uploadedBy: meta.userId,
+        model: meta.model ?? null,
+      })
       .onConflictDoNothing({ target: runs.checksum })
       .returning();
     if (row) {
@@ -162,7 +175,7 @@ export function readRunHandler(deps: RunsDeps): JobHandler<RunJob> {
         checkRunUsable(info);
         await setRun(db, row.id, {
           format: info.format,
-          model: info.model,
+          model: row.model ?? info.model,
           cycle: new Date(info.referenceTime),
           members: info.members,
           isEnsemble: info.isEnsemble,

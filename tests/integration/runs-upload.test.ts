@@ -91,6 +91,22 @@ describe('POST /api/runs', () => {
     expect(list.runs.map((r: { id: string }) => r.id)).toContain(a.run.id);
   });
 
+  it('takes the desk\'s model name from an optional form field, and refuses a malformed one', async () => {
+    const bytes = new Uint8Array(300);
+    bytes.set([0x47, 0x52, 0x49, 0x42, 0, 0, 0, 2, 7]);
+    const named = new FormData();
+    named.append('model', 'NVM');
+    named.append('file', new Blob([bytes]), 'named.grib2');
+    const res = await met.fetch('/api/runs', { method: 'POST', body: named });
+    expect(res.status).toBe(201);
+    expect((await res.json()).run.model).toBe('NVM');
+    const bad = new FormData();
+    bad.append('model', '<script>');
+    bad.append('file', new Blob([bytes.slice(0, 200)]), 'bad.grib2');
+    const refused = await met.fetch('/api/runs', { method: 'POST', body: bad });
+    expect(refused.status).toBe(400);
+  });
+
   it('answers an unknown run id with 404 and a malformed one with 400', async () => {
     expect((await met.fetch('/api/runs/6f1c2a52-2d1e-4c35-9a53-0d3c1c8b7e10')).status).toBe(404);
     expect((await met.fetch('/api/runs/not-a-uuid')).status).toBe(400);

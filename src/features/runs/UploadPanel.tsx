@@ -15,11 +15,12 @@ export function UploadPanel() {
   const [dragging, setDragging] = useState(false);
   const [fraction, setFraction] = useState(0);
   const [current, setCurrent] = useState<File | null>(null);
+  const [model, setModel] = useState('');
   const upload = useMutation<UploadResult, Error, File>({
     mutationFn: (file) => {
       setCurrent(file);
       setFraction(0);
-      return uploadRun(file, setFraction);
+      return uploadRun(file, model, setFraction);
     },
     onSettled: () => queryClient.invalidateQueries({ queryKey: runKeys.all }),
   });
@@ -50,6 +51,16 @@ export function UploadPanel() {
           <p className="font-medium">Drop a GRIB2 or NetCDF file here</p>
           <p className="text-xs text-ink-muted">Pressure levels with geopotential and temperature; a deterministic run or ensemble members. The file type is read from its content.</p>
         </div>
+        <label className="flex flex-col text-2xs text-ink-muted">
+          Model name (optional)
+          <input
+            value={model}
+            onChange={(e) => setModel(e.target.value)}
+            maxLength={40}
+            placeholder="from the file"
+            className="mt-0.5 w-36 rounded border border-line bg-surface px-2 py-1 text-xs text-ink"
+          />
+        </label>
         <button
           type="button"
           onClick={() => input.current?.click()}

@@ -29,7 +29,7 @@ export const runQuery = (id: string) =>
  * Uploads one file with XMLHttpRequest, because fetch cannot report upload progress.
  * onProgress receives 0..1 as bytes leave the browser.
  */
-export function uploadRun(file: File, onProgress: (fraction: number) => void, signal?: AbortSignal): Promise<UploadResult> {
+export function uploadRun(file: File, model: string, onProgress: (fraction: number) => void, signal?: AbortSignal): Promise<UploadResult> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
     xhr.open('POST', '/api/runs');
@@ -56,6 +56,8 @@ export function uploadRun(file: File, onProgress: (fraction: number) => void, si
     xhr.onabort = () => reject(new ApiError(0, 'aborted', 'Upload cancelled. Nothing was stored.'));
     signal?.addEventListener('abort', () => xhr.abort());
     const form = new FormData();
+    // Text fields go before the file: the server reads them as the file starts streaming.
+    if (model.trim()) form.append('model', model.trim());
     form.append('file', file, file.name);
     xhr.send(form);
   });
