@@ -3,6 +3,7 @@
  * perturbed. Deterministic: a seeded generator (mulberry32) drives every random choice.
  */
 import { BASE_WAVE, type WaveParameters } from './atmosphere.ts';
+import { mulberry32 } from '../../server/science/random.ts';
 
 /** Invented model names (the files carry centre 255, so the name travels in the manifest). */
 export const DEMO_MODELS = {
@@ -22,18 +23,6 @@ export function hashSeed(text: string): number {
     h = Math.imul(h, 0x01000193) >>> 0;
   }
   return h;
-}
-
-/** mulberry32: a small, well-mixed 32-bit generator; uniform numbers in [0, 1). */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 /** Standard normal numbers from a uniform generator (Box-Muller). */

@@ -9,6 +9,7 @@
  * in geopotential metres (gpm) or m^2 s^-2: the method is linear, the units carry through.
  */
 import { symmetricEigen } from './linalg.ts';
+import { mulberry32 } from './random.ts';
 
 export class ClusterInputError extends Error {
   constructor(message: string) {
@@ -19,18 +20,6 @@ export class ClusterInputError extends Error {
 
 export const MIN_CLUSTERS = 2;
 export const MAX_CLUSTERS = 6;
-
-/** Seeded PRNG mulberry32 (T. Ettinger, public domain): uniform in [0, 1), 32-bit state. */
-export function mulberry32(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 interface GridShape {
   members: number;

@@ -3,56 +3,11 @@
  * M = diag(f0^2/sigma_k) D2 on uneven levels. M is not symmetric, but M = D S with D diagonal
  * positive and S symmetric (the three-point second difference), so B = D^(1/2) S D^(1/2) is
  * symmetric and similar to M: M = V Lambda V^-1 with V = D^(1/2) Q, V^-1 = Q^T D^(-1/2), where
- * B = Q Lambda Q^T. B is decomposed with the cyclic Jacobi method (Golub and Van Loan,
+ * B = Q Lambda Q^T. B is decomposed with the cyclic Jacobi method of ../linalg.ts (Golub and Van Loan,
  * Matrix Computations, chapter on the symmetric eigenvalue problem, Jacobi methods), accurate to round-off for the small nz of a model run.
  */
+import { symmetricEigen } from '../linalg.ts';
 import type { OmegaOperator } from './operator.ts';
-
-/**
- * Eigen-decomposition of a symmetric n x n matrix (row-major), cyclic Jacobi rotations.
- * Returns eigenvalues and eigenvectors as the columns of `vectors` (row-major n x n).
- */
-export function symmetricEigen(matrix: Float64Array, n: number): { values: Float64Array; vectors: Float64Array } {
-  const a = Float64Array.from(matrix);
-  const v = new Float64Array(n * n);
-  for (let i = 0; i < n; i++) v[i * n + i] = 1;
-  let scale = 0;
-  for (let i = 0; i < n * n; i++) scale += a[i] * a[i];
-  const tolerance = 1e-30 * scale;
-  for (let sweep = 0; sweep < 100; sweep++) {
-    let off = 0;
-    for (let p = 0; p < n; p++) for (let q = p + 1; q < n; q++) off += a[p * n + q] * a[p * n + q];
-    if (off <= tolerance) break;
-    for (let p = 0; p < n; p++) {
-      for (let q = p + 1; q < n; q++) {
-        const apq = a[p * n + q];
-        if (apq === 0) continue;
-        // the classical Jacobi rotation that annihilates a[p][q], with the smaller root t for stability
-        const tau = (a[q * n + q] - a[p * n + p]) / (2 * apq);
-        const t = (tau >= 0 ? 1 : -1) / (Math.abs(tau) + Math.sqrt(1 + tau * tau));
-        const c = 1 / Math.sqrt(1 + t * t), s = t * c;
-        for (let k = 0; k < n; k++) {
-          const akp = a[k * n + p], akq = a[k * n + q];
-          a[k * n + p] = c * akp - s * akq;
-          a[k * n + q] = s * akp + c * akq;
-        }
-        for (let k = 0; k < n; k++) {
-          const apk = a[p * n + k], aqk = a[q * n + k];
-          a[p * n + k] = c * apk - s * aqk;
-          a[q * n + k] = s * apk + c * aqk;
-        }
-        for (let k = 0; k < n; k++) {
-          const vkp = v[k * n + p], vkq = v[k * n + q];
-          v[k * n + p] = c * vkp - s * vkq;
-          v[k * n + q] = s * vkp + c * vkq;
-        }
-      }
-    }
-  }
-  const values = new Float64Array(n);
-  for (let i = 0; i < n; i++) values[i] = a[i * n + i];
-  return { values, vectors: v };
-}
 
 export interface VerticalModes {
   /** number of interior levels m = nz - 2 */
@@ -99,7 +54,10 @@ export function verticalModes(op: OmegaOperator): VerticalModes {
       sym[(r + 1) * m + r] = off;
     }
   }
-  const { values, vectors } = symmetricEigen(sym, m);
+  const { values, vectors: modes } = symmetricEigen(sym, m);
+  // modes[c] is the c-th unit eigenvector; as a row-major matrix its entries sit in column c.
+  const vectors = new Float64Array(m * m);
+  modes.forEach((mode, c) => mode.forEach((x, r) => (vectors[r * m + c] = x)));
   const v = new Float64Array(m * m), vInv = new Float64Array(m * m);
   for (let r = 0; r < m; r++) {
     const sq = Math.sqrt(d[r]);

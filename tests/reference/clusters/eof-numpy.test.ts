@@ -11,7 +11,8 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { clusterEnsemble, eofAnalysis, mulberry32, silhouetteSamples } from '../../../server/science/clusters.ts';
+import { clusterEnsemble, eofAnalysis, silhouetteSamples } from '../../../server/science/clusters.ts';
+import { mulberry32 } from '../../../server/science/random.ts';
 import { LAT, plantedEnsemble, spreadEnsemble } from '../../unit/science/clusters/synthetic-ensemble.ts';
 
 const PYTHON = '/usr/bin/python3';

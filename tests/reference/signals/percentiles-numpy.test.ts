@@ -6,19 +6,9 @@
 import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import { weightedPercentiles } from '../../../server/science/statistics.ts';
+import { mulberry32 } from '../../../server/science/random.ts';
 
 const PYTHON = '/usr/bin/python3';
-
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function numpyPercentiles(samples: number[][], ps: number[]): number[][] {
   const script = [

@@ -5,8 +5,9 @@
 import { describe, expect, it } from 'vitest';
 import {
   CURRENT_CYCLE, MEMBER_GROUP_SPEED, PREVIOUS_CYCLE, deterministicWave, ensembleControlWave, hashSeed, hoursFromCurrentCycle,
-  memberWaves, mulberry32,
+  memberWaves,
 } from '../../../scripts/demo/runs.ts';
+import { mulberry32 } from '../../../server/science/random.ts';
 
 describe('seeded generator', () => {
   it('same seed, same sequence; another seed, another sequence', () => {

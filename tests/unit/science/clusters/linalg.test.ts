@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { LinalgInputError, symmetricEigen } from '../../../../server/science/linalg.ts';
-import { mulberry32 } from '../../../../server/science/clusters.ts';
+import { mulberry32 } from '../../../../server/science/random.ts';
 
 function randomSymmetric(n: number, seed: number): Float64Array {
   const random = mulberry32(seed);

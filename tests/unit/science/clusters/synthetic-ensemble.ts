@@ -3,7 +3,7 @@
  * North Atlantic and Europe (121 lon x 81 lat, 20..80 N, 40 W..50 E), a flat 5500 gpm base,
  * and members built from known anomaly patterns plus seeded Gaussian noise.
  */
-import { mulberry32 } from '../../../../server/science/clusters.ts';
+import { mulberry32 } from '../../../../server/science/random.ts';
 
 export const N_LON = 121;
 export const N_LAT = 81;
