@@ -6,6 +6,7 @@
  * generator also writes them as nordvale-regions.geojson, people.json and subscribers.json.
  */
 import type { Feature, FeatureCollection, Polygon, Position } from 'geojson';
+import { DEMO_PEOPLE as IDP_PEOPLE } from '../../server/dev/idp/people.ts';
 
 export type Role = 'meteorologist' | 'trader' | 'risk' | 'admin';
 
@@ -123,17 +124,14 @@ export const DEMO_GROUP_ROLES: Record<string, Role> = {
 
 export const DEMO_DOMAIN = 'nordvale.example';
 
-function person(id: string, name: string, groups: string[]): DemoPerson {
-  return { id, name, email: `${id}@${DEMO_DOMAIN}`, groups, roles: groups.map((g) => DEMO_GROUP_ROLES[g]) };
-}
-
-export const DEMO_PEOPLE: DemoPerson[] = [
-  person('astrid.kalmvik', 'Astrid Kalmvik', ['lw-meteorologists']),
-  person('jonas.brattel', 'Jonas Brattel', ['lw-traders']),
-  person('sofie.lindmark', 'Sofie Lindmark', ['lw-risk']),
-  person('erik.tormund', 'Erik Tormund', ['lw-admins']),
-  person('hanne.vesterlid', 'Hanne Vesterlid', ['lw-meteorologists', 'lw-admins']),
-];
+/** The demo people are the local identity provider's (server/dev/idp/people.ts): one list for both. */
+export const DEMO_PEOPLE: DemoPerson[] = IDP_PEOPLE.map((p) => ({
+  id: p.email.split('@')[0],
+  name: p.name,
+  email: p.email,
+  groups: [...p.groups],
+  roles: p.groups.map((g) => DEMO_GROUP_ROLES[g]),
+}));
 
 export interface DemoSubscriber {
   email: string;

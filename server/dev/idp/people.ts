@@ -1,7 +1,6 @@
 /**
- * Invented demo people of the fictional Nordvale desk, one per role and one with two roles.
- * The demo data (scripts/demo/market.ts, branch demo) has its own list; once both are merged
- * this list should be read from there.
+ * Invented demo people of the fictional Nordvale desk, one per role and one with two roles:
+ * the one list, used by the local identity provider and by the demo data (scripts/demo/market.ts).
  */
 export interface DemoPerson {
   key: string;
