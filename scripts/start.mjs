@@ -25,7 +25,9 @@ async function main() {
 
   const children = [];
   if (dev) {
-    children.push(spawn(process.execPath, [tsx, 'watch', '--clear-screen=false', 'server/index.ts'], { cwd: root, stdio: 'inherit', env }));
+    // People use Vite's port; sign-in redirects and the assertion consumer service go through its proxy.
+    const devEnv = { ...env, PUBLIC_URL: process.env.PUBLIC_URL ?? `http://127.0.0.1:${process.env.VITE_PORT ?? 5173}` };
+    children.push(spawn(process.execPath, [tsx, 'watch', '--clear-screen=false', 'server/index.ts'], { cwd: root, stdio: 'inherit', env: devEnv }));
     children.push(spawn(process.execPath, [path.join(root, 'node_modules', 'vite', 'bin', 'vite.js')], { cwd: root, stdio: 'inherit', env }));
     log(`development: open http://127.0.0.1:${process.env.VITE_PORT ?? 5173} (API on port ${process.env.PORT ?? 8080})`);
   } else {
