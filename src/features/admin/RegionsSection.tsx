@@ -1,7 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useId, useMemo, useState } from 'react';
 import { validateRegions, type RegionGeometry, type RegionIssue, type RegionProperties } from '@shared/regions.ts';
-import { Card } from '@/components/Page.tsx';
+import { Card, EmptyState } from '@/components/Page.tsx';
 import { formatValue } from '@/lib/format.ts';
 import { regionKeys, regionsQuery, RegionsRefused, saveRegions, type RegionRow } from './api.ts';
 
@@ -160,7 +160,13 @@ function keyParameters(p: RegionProperties): string {
 }
 
 function RegionTable({ regions }: { regions: RegionRow[] }) {
-  if (regions.length === 0) return <p className="text-ink-muted">No regions loaded yet: upload a regions file below.</p>;
+  if (regions.length === 0) {
+    return (
+      <EmptyState icon="admin" title="No regions loaded">
+        Upload the hydro catchments and solar zones (GeoJSON with plant parameters) below; they are listed here with a map preview.
+      </EmptyState>
+    );
+  }
   return (
     <table className="w-full text-left text-xs">
       <thead className="text-2xs uppercase tracking-wide text-ink-muted">
