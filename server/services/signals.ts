@@ -275,11 +275,19 @@ export async function computeMemberSignals(
 ): Promise<MemberSignals> {
   const { info } = source;
   const { weights, skipped } = weightsForGrid(info.axes, regions);
+  const warnings = [...skipped];
   const stepsHours = [...info.steps].sort((a, b) => a - b);
-  if (weights.size === 0 || stepsHours.length < 2) {
-    const warnings = [...skipped];
-    if (stepsHours.length < 2) warnings.push(`the run has ${stepsHours.length} step(s); daily signals need at least 2`);
-    return { rows: [], warnings };
+  const names = new Set(info.variables.map((v) => v.name));
+  if (stepsHours.length < 2) warnings.push(`the run has ${stepsHours.length} step(s); daily signals need at least 2`);
+  if (!names.has('t') || (!names.has('r') && !names.has('q'))) {
+    warnings.push('the file has no temperature and humidity (t with r or q) on pressure levels; no regional signals for this run');
+  }
+  if (weights.size === 0 || warnings.length > skipped.length) return { rows: [], warnings };
+  const levels = info.axes.levels;
+  if (cal.rainSnowLevel === '850hPa' && !(levels[0] >= 85000 && levels[levels.length - 1] <= 85000)) {
+    // Without 850 hPa in the column, the ramp uses the lowest level rather than failing the member.
+    warnings.push(`850 hPa is outside the levels (${levels[0] / 100}..${levels[levels.length - 1] / 100} hPa): the rain/snow split used the lowest level`);
+    cal = { ...cal, rainSnowLevel: 'lowest' };
   }
   const perStep: Map<string, StepMeans>[] = [];
   for (const step of stepsHours) perStep.push(await stepMeans(source, step, weights, cal));
@@ -290,7 +298,7 @@ export async function computeMemberSignals(
     if (!w) continue;
     rows.push(...regionRows(region, w, perStep.map((m) => m.get(region.id)!), stepsHours, referenceMs, cal));
   }
-  return { rows, warnings: skipped };
+  return { rows, warnings };
 }
 
 // ---------------------------------------------------------------------------------------------

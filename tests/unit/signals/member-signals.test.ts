@@ -98,6 +98,27 @@ describe('computeMemberSignals', () => {
     expect(rows[0].modelCloudPct).toBeNull();
   });
 
+  it('a file without humidity gives no rows and says why; a column without 850 hPa splits rain and snow at the lowest level', async () => {
+    const dry = info(12, 30, STEPS);
+    dry.variables = dry.variables.filter((v) => v.name !== 'r');
+    const none = await computeMemberSignals(source(dry, 90, -0.1), REGIONS.slice(0, 1), DEFAULT_CALIBRATION_PARAMETERS);
+    expect(none.rows).toEqual([]);
+    expect(none.warnings).toEqual([expect.stringMatching(/no temperature and humidity/)]);
+
+    const high = info(12, 30, STEPS);
+    high.axes = { ...high.axes, levels: Float64Array.from(LEVELS.slice(3)) }; // 700..300 hPa
+    const src = source(high, 95, -0.2);
+    const plane = 12 * 30;
+    const n = (LEVELS.length - 3) * plane;
+    // A cold column (-10 degC at every level): all snow by the lowest-level ramp.
+    src.readField = async (name, step) => (name === 't' ? new Float32Array(n).fill(263.15) : name === 'r' ? new Float32Array(n).fill(95) : new Float32Array(plane).fill(step));
+    src.readOmega = async () => new Float32Array(n).fill(-0.2);
+    const cold = await computeMemberSignals(src, REGIONS.slice(0, 1), DEFAULT_CALIBRATION_PARAMETERS);
+    expect(cold.warnings).toEqual([expect.stringMatching(/850 hPa is outside the levels/)]);
+    expect(cold.rows[0].precipMm!).toBeGreaterThan(0);
+    expect(cold.rows[0].snowShare).toBeCloseTo(1, 6);
+  });
+
   it('weights are computed once per grid and region set', () => {
     const a = weightsForGrid(axes(12, 30), REGIONS);
     expect(weightsForGrid(axes(12, 30), [...REGIONS].reverse())).toBe(a);
