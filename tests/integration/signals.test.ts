@@ -4,10 +4,11 @@
  * through GET /api/runs/:id/signals; idempotence of the deriver; and the offline `signals`
  * command agreeing with the stored rows on the same files.
  */
-import { spawnSync } from 'node:child_process';
+import { execFile } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import { promisify } from 'node:util';
 import { and, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { SignalRow } from '@shared/api/signals.ts';
@@ -213,12 +214,12 @@ describe('signals of a processed run', () => {
     const used = sets.find((s: { version: number }) => s.version === stored[0].calibrationVersion);
     const calFile = path.join(out, 'calibration.json');
     fs.writeFileSync(calFile, JSON.stringify(used));
-    const cli = spawnSync(
+    // Asynchronously: the app under test runs in this process and must keep serving meanwhile.
+    const cli = await promisify(execFile)(
       process.execPath,
       ['--import', 'tsx', 'server/cli/liftwise.ts', 'signals', file, '--regions', regionsFile, '--calibration', calFile, '--member', '1', '--json'],
-      { cwd: path.resolve(import.meta.dirname, '../..'), encoding: 'utf8' },
+      { cwd: path.resolve(import.meta.dirname, '../..'), encoding: 'utf8', maxBuffer: 16 * 1024 * 1024 },
     );
-    expect(cli.status, cli.stderr).toBe(0);
     expect(cli.stderr).toMatch(/st-hydro-east/);
     const rows = JSON.parse(cli.stdout) as Record<string, number | string | null>[];
     expect(rows).toHaveLength(stored.length);
