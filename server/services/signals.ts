@@ -25,7 +25,7 @@ import { and, asc, eq, sql } from 'drizzle-orm';
 import type { SignalRow } from '@shared/api/signals.ts';
 import type { CalibrationParameters } from '@shared/calibration.ts';
 import type { RegionGeometry, RegionProperties } from '@shared/regions.ts';
-import type { CanonicalVariable, GridAxes, RunInfo } from '../ingest/canonical.ts';
+import { IngestError, type CanonicalVariable, type GridAxes, type RunInfo } from '../ingest/canonical.ts';
 import { cloudCover } from '../science/clouds.ts';
 import { catchmentInflowEnergy, dailyTotalsFromIntervals } from '../science/hydro.ts';
 import { condensationPrecipitationRate, rainSnowLevelTemperature, snowShareField, type ColumnShape } from '../science/precipitation.ts';
@@ -160,8 +160,19 @@ async function stepMeans(
   const share = snowShareField(t, shape, cal);
   const cloud = cloudCover(rh, omega, shape, cal).total;
   const lowest = rainSnowLevelTemperature(t, shape, 'lowest');
-  const tp = names.has('tp') ? await source.readField('tp', step) : null;
-  const tcc = names.has('tcc') ? await source.readField('tcc', step) : null;
+  // A model field missing at one step (often tp at step 0, where the running total is 0 by
+  // definition) leaves the model columns empty there rather than failing the member.
+  const optional = async (name: 'tp' | 'tcc'): Promise<Float32Array | null> => {
+    if (!names.has(name)) return null;
+    try {
+      return await source.readField(name, step);
+    } catch (err) {
+      if (!(err instanceof IngestError)) throw err;
+      return name === 'tp' && step === 0 ? new Float32Array(shape.nlat * shape.nlon) : null;
+    }
+  };
+  const tp = await optional('tp');
+  const tcc = await optional('tcc');
   const out = new Map<string, StepMeans>();
   for (const [id, w] of weights) {
     out.set(id, {

@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_CALIBRATION_PARAMETERS } from '@shared/calibration.ts';
-import type { CanonicalVariable, RunInfo } from '../../../server/ingest/canonical.ts';
+import { IngestError, type CanonicalVariable, type RunInfo } from '../../../server/ingest/canonical.ts';
 import { computeMemberSignals, weightsForGrid, type MemberFieldSource, type SignalRegion } from '../../../server/services/signals.ts';
 import { geometryAreaKm2 } from '../../../server/services/regions.ts';
 import { calibrationFromJson, regionsFromGeojson } from '../../../server/cli/commands/signals.ts';
@@ -117,6 +117,19 @@ describe('computeMemberSignals', () => {
     expect(cold.warnings).toEqual([expect.stringMatching(/850 hPa is outside the levels/)]);
     expect(cold.rows[0].precipMm!).toBeGreaterThan(0);
     expect(cold.rows[0].snowShare).toBeCloseTo(1, 6);
+  });
+
+  it('tp missing at step 0 counts as 0 (running total since the reference time); tcc missing at a step empties the model cloud', async () => {
+    const src = source(info(12, 30, STEPS), 50, 0.2);
+    const read = src.readField.bind(src);
+    src.readField = async (name, step) => {
+      if ((name === 'tp' && step === 0) || (name === 'tcc' && step === 12)) throw new IngestError(name, `no field for member 0 at step ${step} h`);
+      return read(name, step);
+    };
+    const { rows } = await computeMemberSignals(src, REGIONS.slice(0, 1), DEFAULT_CALIBRATION_PARAMETERS);
+    expect(rows[0].modelPrecipMm).toBeCloseTo(24, 4);
+    expect(rows[0].modelCloudPct).toBeNull();
+    expect(rows[0].cloudPct).toBe(0);
   });
 
   it('weights are computed once per grid and region set', () => {
