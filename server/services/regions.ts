@@ -6,7 +6,7 @@
  * regions left out of the new file inactive and upserts the others as active, in one
  * transaction with its audit row.
  */
-import { asc, eq, inArray, notInArray } from 'drizzle-orm';
+import { asc, eq, notInArray } from 'drizzle-orm';
 import { validateRegions, type RegionGeometry, type RegionProperties } from '@shared/regions.ts';
 import type { Database } from '../db/client.ts';
 import { regions } from '../db/schema.ts';
@@ -112,10 +112,4 @@ export async function replaceRegions(
     });
   });
   return listActiveRegions(db);
-}
-
-/** Regions by id (active or not), for lookups from signal rows. */
-export async function regionsById(db: Database, ids: string[]): Promise<RegionView[]> {
-  if (ids.length === 0) return [];
-  return (await db.select().from(regions).where(inArray(regions.id, ids))).map(view);
 }
