@@ -22,6 +22,9 @@ import { authRouter } from './routes/auth.ts';
 import { healthRouter } from './routes/health.ts';
 import { runsRouter } from './routes/runs.ts';
 import { meRouter } from './routes/me.ts';
+import { regionsRouter } from './routes/regions.ts';
+import { calibrationRouter } from './routes/calibration.ts';
+import { signalsRouter } from './routes/signals.ts';
 
 export interface AppDeps {
   config: Config;
@@ -86,6 +89,9 @@ export function createApp(deps: AppDeps): express.Express {
   app.use('/api', meRouter(deps));
   app.use('/api', auditRouter(deps));
   app.use('/api', adminRolesRouter(deps));
+  app.use('/api', regionsRouter(deps));
+  app.use('/api', calibrationRouter(deps));
+  app.use('/api', signalsRouter(deps));
 
   app.use('/api', (_req, _res, next) => next(new AppError(404, 'not_found', 'No such API route.')));
   if (config.serveClient) serveClient(app, config.clientDir);

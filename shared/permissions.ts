@@ -33,6 +33,11 @@ export const PERMISSIONS: readonly Permission[] = [
   { method: 'GET', path: '/api/runs/:id/members', access: 'signed-in' },
   { method: 'POST', path: '/api/runs/:id/members/:member/retry', access: ['meteorologist'] },
   { method: 'GET', path: '/api/dev/outbox', access: 'signed-in' },
+  { method: 'GET', path: '/api/regions', access: 'signed-in' },
+  { method: 'PUT', path: '/api/regions', access: ['admin'] },
+  { method: 'GET', path: '/api/calibration-sets', access: 'signed-in' },
+  { method: 'POST', path: '/api/calibration-sets', access: ['meteorologist'] },
+  { method: 'GET', path: '/api/runs/:id/signals', access: 'signed-in' },
 ];
 
 function segments(path: string): string[] {

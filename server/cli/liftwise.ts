@@ -9,6 +9,7 @@ const commands: Record<string, Command> = {
   inspect: { summary: 'describe a model-run file (GRIB2 / NetCDF), or dump one field', load: () => import('./commands/inspect.ts') },
   'verify-snapshot': { summary: 'check an exported sealed snapshot offline (hash, chain, signature)', load: () => import('./commands/verify-snapshot.ts') },
   diagnose: { summary: 'QG omega diagnosis of a run, step by step', load: () => import('./commands/diagnose.ts') },
+  signals: { summary: 'regional daily signals of a run (precipitation, cloud, solar, inflow), offline', load: () => import('./commands/signals.ts') },
 };
 
 function usage(): string {

@@ -4,11 +4,12 @@
  */
 import { processMemberHandler, type MemberDeriver } from '../services/pipeline.ts';
 import { readRunHandler, type RunsDeps } from '../services/runs.ts';
+import { signalsDeriver } from '../services/signals.ts';
 import { OmegaPool } from './omega-pool.ts';
 import { QUEUE_NAMES, startWorkers } from './queue.ts';
 
 /** Work that follows each member's diagnosis, in order. */
-export const MEMBER_DERIVERS: MemberDeriver[] = [];
+export const MEMBER_DERIVERS: MemberDeriver[] = [signalsDeriver];
 
 export interface Workers {
   pool: OmegaPool;

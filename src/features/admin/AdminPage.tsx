@@ -1,4 +1,6 @@
-import { EmptyState, PageHeader } from '@/components/Page.tsx';
+import { PageHeader } from '@/components/Page.tsx';
+import { CalibrationSection } from './CalibrationSection.tsx';
+import { RegionsSection } from './RegionsSection.tsx';
 import { RoleMappingSection } from './RoleMappingSection.tsx';
 
 export function AdminPage() {
@@ -6,9 +8,8 @@ export function AdminPage() {
     <div className="flex flex-col gap-4">
       <PageHeader title="Admin" subtitle="Regions, calibration sets, role mapping and mail subscriptions." />
       <div className="grid gap-4 lg:grid-cols-2">
-        <EmptyState icon="admin" title="No regions loaded">
-          Hydro catchments and solar zones (GeoJSON with plant parameters) will be listed here with a map preview.
-        </EmptyState>
+        <RegionsSection />
+        <CalibrationSection />
         <RoleMappingSection />
       </div>
     </div>
