@@ -70,7 +70,10 @@ export function createApp(deps: AppDeps): express.Express {
       },
     }),
   );
-  app.use(express.json({ limit: '1mb' }));
+  // Bodies are small, except a regions file (polygons), which may be large.
+  const smallJson = express.json({ limit: '1mb' });
+  const regionsJson = express.json({ limit: '25mb' });
+  app.use((req, res, next) => (req.path === '/api/regions' ? regionsJson : smallJson)(req, res, next));
   app.use(express.urlencoded({ extended: false, limit: '1mb' }));
 
   const auth = createAuth(deps);

@@ -5,6 +5,7 @@ import { Icon, type IconName } from '@/components/Icon.tsx';
 import { meQuery } from '@/features/auth/api.ts';
 import { UserMenu } from '@/features/auth/UserMenu.tsx';
 import { appInfoQuery } from './app-info.ts';
+import { ADMIN_SCREEN_ROUTES, type RouteRef } from './RequireSignIn.tsx';
 import { useTheme } from './theme.tsx';
 
 interface NavItem {
@@ -13,7 +14,8 @@ interface NavItem {
   icon: IconName;
   devOnly?: boolean;
   /** shown only to those the permission table lets read this API route */
-  needs?: string;
+  /** shown to those who may call at least one of these API routes */
+  needs?: readonly RouteRef[];
 }
 
 export const NAV_ITEMS: NavItem[] = [
@@ -21,7 +23,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/scenarios', label: 'Scenarios', icon: 'scenarios' },
   { to: '/regime-calls', label: 'Regime calls', icon: 'call' },
   { to: '/snapshots', label: 'Snapshots', icon: 'seal' },
-  { to: '/admin', label: 'Admin', icon: 'admin', needs: '/api/admin/role-mappings' },
+  { to: '/admin', label: 'Admin', icon: 'admin', needs: ADMIN_SCREEN_ROUTES },
   { to: '/outbox', label: 'Outbox', icon: 'outbox', devOnly: true },
 ];
 
@@ -43,7 +45,7 @@ export function Layout() {
   const info = useQuery(appInfoQuery);
   const me = useQuery(meQuery);
   const roles = me.data?.roles ?? null;
-  const items = NAV_ITEMS.filter((item) => (!item.devOnly || info.data?.devTools) && (!item.needs || canCall('GET', item.needs, roles)));
+  const items = NAV_ITEMS.filter((item) => (!item.devOnly || info.data?.devTools) && (!item.needs || item.needs.some((r) => canCall(r.method, r.path, roles))));
   return (
     <div className="flex h-full">
       <nav aria-label="Screens" className="flex w-48 shrink-0 flex-col border-r border-line bg-surface-raised">

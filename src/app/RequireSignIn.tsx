@@ -38,8 +38,21 @@ export function RequireSignIn({ children }: { children: ReactNode }) {
  * Shows a screen only to those the permission table lets call its main API route; the server
  * refuses the others anyway, this only spares them a screen of errors.
  */
-export function RequireAccess({ method = 'GET', path, children }: { method?: HttpMethod; path: string; children: ReactNode }) {
+export function RequireAccess({ anyOf, children }: { anyOf: readonly RouteRef[]; children: ReactNode }) {
   const me = useQuery(meQuery);
   if (!me.data) return null;
-  return canCall(method, path, me.data.roles) ? children : <NotAllowedPage />;
+  const roles = me.data.roles;
+  return anyOf.some((r) => canCall(r.method, r.path, roles)) ? children : <NotAllowedPage />;
 }
+
+/** An API route a screen is for: its people are those who may call at least one of them. */
+export interface RouteRef {
+  method: HttpMethod;
+  path: string;
+}
+
+/** The Admin screen serves admins (regions, roles, subscriptions) and meteorologists (calibration sets). */
+export const ADMIN_SCREEN_ROUTES: readonly RouteRef[] = [
+  { method: 'GET', path: '/api/admin/role-mappings' },
+  { method: 'POST', path: '/api/calibration-sets' },
+];

@@ -9,7 +9,7 @@ import { ScenariosPage } from '@/features/scenarios/ScenariosPage.tsx';
 import { SnapshotsPage } from '@/features/snapshots/SnapshotsPage.tsx';
 import { Layout } from './Layout.tsx';
 import { NotFoundPage } from './NotFoundPage.tsx';
-import { RequireAccess, RequireSignIn } from './RequireSignIn.tsx';
+import { ADMIN_SCREEN_ROUTES, RequireAccess, RequireSignIn } from './RequireSignIn.tsx';
 
 /** The route table: one entry per screen of PRODUCT.md. */
 export const routes: RouteObject[] = [
@@ -31,7 +31,7 @@ export const routes: RouteObject[] = [
       {
         path: 'admin',
         element: (
-          <RequireAccess path="/api/admin/role-mappings">
+          <RequireAccess anyOf={ADMIN_SCREEN_ROUTES}>
             <AdminPage />
           </RequireAccess>
         ),

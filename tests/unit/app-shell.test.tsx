@@ -53,6 +53,8 @@ beforeEach(() => {
         const me = { id: 'u1', name: 'Anders Lund', email: 'anders.lund@nordvale.example', roles: currentRoles, csrfToken: 'token' };
         return new Response(JSON.stringify(me), { status: 200 });
       }
+      if (url.endsWith('/api/regions')) return new Response(JSON.stringify({ regions: [] }), { status: 200 });
+      if (url.endsWith('/api/calibration-sets')) return new Response(JSON.stringify({ sets: [] }), { status: 200 });
       if (url.endsWith('/api/admin/role-mappings')) return new Response(JSON.stringify({ mappings: [] }), { status: 200 });
       return new Response(JSON.stringify({ error: { code: 'not_found', message: 'x' } }), { status: 404 });
     }),

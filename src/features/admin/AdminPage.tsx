@@ -1,16 +1,19 @@
 import { PageHeader } from '@/components/Page.tsx';
+import { useCan } from '@/lib/session.ts';
 import { CalibrationSection } from './CalibrationSection.tsx';
 import { RegionsSection } from './RegionsSection.tsx';
 import { RoleMappingSection } from './RoleMappingSection.tsx';
 
+/** Admins see every section; meteorologists reach this screen for the calibration sets. */
 export function AdminPage() {
+  const isAdmin = useCan('PUT', '/api/admin/role-mappings');
   return (
     <div className="flex flex-col gap-4">
       <PageHeader title="Admin" subtitle="Regions, calibration sets, role mapping and mail subscriptions." />
       <div className="grid gap-4 lg:grid-cols-2">
-        <RegionsSection />
+        {isAdmin ? <RegionsSection /> : null}
         <CalibrationSection />
-        <RoleMappingSection />
+        {isAdmin ? <RoleMappingSection /> : null}
       </div>
     </div>
   );
