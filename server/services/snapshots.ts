@@ -392,4 +392,4 @@ export async function exportSnapshotXlsx(deps: SnapshotDeps, id: number, audit: 
   return { fileName: `liftwise-snapshot-${id}-${shortHash(row.hash)}.xlsx`, data };
 }
 
-export { snapshotFiltersSchema };
+export { snapshotFiltersSchema, getRow as getSnapshotRow };
