@@ -14,7 +14,7 @@ import ExcelJS from 'exceljs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { PROJECT_ROOT } from '../../server/config.ts';
 import { scenarioSpread } from '../../server/science/statistics.ts';
-import { getSnapshotRow, sealKeyFor, verifyStoredRow } from '../../server/services/snapshots.ts';
+import { getSnapshotRow, sealAfterPublish, sealKeyFor, verifyStoredRow } from '../../server/services/snapshots.ts';
 import { signIn, startTestApp, type Client, type TestApp } from './support.ts';
 
 const tag = `${process.pid}-${Date.now().toString(36)}`;
@@ -376,5 +376,19 @@ describe('sealed snapshots', () => {
     const formats = exports.events.filter((e) => e.objectId === String(sealed[0].id)).map((e) => e.detail.format);
     expect(formats).toEqual(expect.arrayContaining(['json', 'xlsx']));
     expect((await json<{ ok: boolean }>(await admin.fetch('/api/audit/verify'))).ok).toBe(true);
+  });
+
+  it('after a publish, the system seals only when SNAPSHOT_AFTER_PUBLISH is on, into the same chain', async () => {
+    const callId = randomUUID();
+    expect(await sealAfterPublish({ db: t.db, config: { ...t.config, snapshotAfterPublish: false } as typeof t.config }, { callId })).toBeNull();
+    const snapshot = await sealAfterPublish({ db: t.db, config: { ...t.config, snapshotAfterPublish: true } as typeof t.config }, { callId });
+    expect(snapshot).not.toBeNull();
+    expect(snapshot!.sealedBy).toBe('system (after publish)');
+    expect(snapshot!.summary).toMatchObject({ trigger: 'after-publish', callId });
+    expect(snapshot!.previousHash).toBe(sealed.at(-1)!.hash);
+    const chain = await json<{ valid: boolean; checked: number }>(await admin.fetch('/api/snapshots/verify-chain'));
+    expect(chain).toMatchObject({ valid: true, checked: sealed.length + 1 });
+    const audit = await json<{ events: { objectId: string; actorLabel: string; detail: { trigger: string } }[] }>(await admin.fetch('/api/audit?action=snapshot.seal&limit=5'));
+    expect(audit.events.find((e) => e.objectId === String(snapshot!.id))).toMatchObject({ actorLabel: 'system', detail: { trigger: 'after-publish' } });
   });
 });
