@@ -27,7 +27,7 @@ import type { Logger } from '../logger.ts';
 import { canonicalJson } from '../seal/canonical-json.ts';
 import { snapshotExportText } from '../seal/export.ts';
 import { loadOrCreateSealKey, type SealKey } from '../seal/keys.ts';
-import { headerHashOf, sealSnapshot, verifySnapshot } from '../seal/seal.ts';
+import { headerHashOf, sealSnapshot, sha256Hex, verifySnapshot } from '../seal/seal.ts';
 import { recordAudit, type AuditEventInput } from './audit.ts';
 import { buildSnapshotContent, snapshotFiltersSchema, type SnapshotContentSummary, type SnapshotFilters } from './snapshot-content.ts';
 
@@ -262,6 +262,27 @@ export function verifyStoredRow(row: SnapshotRow, expectedPreviousHash: string |
   return { valid: checks.every((c) => c.ok), checks, recomputedHash };
 }
 
+/**
+ * Walking the chain re-verifies every document, which for multi-megabyte documents is the slow
+ * part (parse, canonicalise, hash). A row that verified before is trusted again only when
+ * everything the verification read is unchanged: the SHA-256 of the stored text, every column
+ * it compares, the expected previous hash and the key. Any edit misses the cache.
+ */
+const verifiedRows = new Map<string, SnapshotVerification & { recomputedHash: string }>();
+const MAX_CACHED = 10_000;
+
+function verifyStoredRowCached(row: SnapshotRow, expectedPreviousHash: string | null, key: SealKey): SnapshotVerification & { recomputedHash: string } {
+  const cacheKey = [row.id, sha256Hex(row.document), row.hash, row.previousHash, row.keyId, row.sealedAt.toISOString(), expectedPreviousHash, key.keyId].join('|');
+  const hit = verifiedRows.get(cacheKey);
+  if (hit) return hit;
+  const result = verifyStoredRow(row, expectedPreviousHash, key);
+  if (result.valid) {
+    if (verifiedRows.size >= MAX_CACHED) verifiedRows.clear();
+    verifiedRows.set(cacheKey, result);
+  }
+  return result;
+}
+
 export interface ChainStatus {
   valid: boolean;
   checked: number;
@@ -278,7 +299,7 @@ export async function verifySnapshotChain(deps: SnapshotDeps, uptoId?: number, b
     const where = uptoId === undefined ? gt(snapshots.id, afterId) : and(gt(snapshots.id, afterId), lte(snapshots.id, uptoId));
     const rows = await deps.db.db.select().from(snapshots).where(where).orderBy(asc(snapshots.id)).limit(batch);
     for (const row of rows) {
-      const result = verifyStoredRow(row, previous, key);
+      const result = verifyStoredRowCached(row, previous, key);
       const failed = result.checks.find((c) => !c.ok);
       if (failed) return { valid: false, checked, firstBroken: { id: row.id, shortHash: shortHash(row.hash), check: failed.name, detail: failed.detail } };
       previous = result.recomputedHash;
