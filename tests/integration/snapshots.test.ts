@@ -253,6 +253,15 @@ describe('sealed snapshots', () => {
     const server = await json<{ valid: boolean }>(await risk.fetch(`/api/snapshots/${id}/verify`));
     expect(server.valid).toBe(true);
 
+    // the chain link offline too: the second snapshot's export against the first's
+    const secondFile = path.join(dir, 'second.json');
+    fs.writeFileSync(secondFile, await (await risk.fetch(`/api/snapshots/${sealed[1].id}/export.json`)).text());
+    const linked = cli(secondFile, '--public-key', keyFile, '--previous', file);
+    expect(linked.stdout).toMatch(/^ok {3}chain/m);
+    expect(linked.status).toBe(0);
+    const misLinked = cli(secondFile, '--public-key', keyFile, '--previous', secondFile);
+    expect(misLinked.stdout).toMatch(/^FAIL chain/m);
+
     const other = path.join(dir, 'other.pem');
     fs.writeFileSync(other, generateKeyPairSync('ed25519').publicKey.export({ type: 'spki', format: 'pem' }).toString());
     const wrong = cli(file, '--public-key', other);
