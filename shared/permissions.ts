@@ -38,6 +38,14 @@ export const PERMISSIONS: readonly Permission[] = [
   { method: 'GET', path: '/api/calibration-sets', access: 'signed-in' },
   { method: 'POST', path: '/api/calibration-sets', access: ['meteorologist'] },
   { method: 'GET', path: '/api/runs/:id/signals', access: 'signed-in' },
+  { method: 'POST', path: '/api/snapshots', access: ['risk'] },
+  { method: 'GET', path: '/api/snapshots', access: ['risk', 'admin'] },
+  { method: 'GET', path: '/api/snapshots/public-key', access: 'signed-in' },
+  { method: 'GET', path: '/api/snapshots/verify-chain', access: ['risk', 'admin'] },
+  { method: 'GET', path: '/api/snapshots/:id', access: ['risk', 'admin'] },
+  { method: 'GET', path: '/api/snapshots/:id/verify', access: ['risk', 'admin'] },
+  { method: 'GET', path: '/api/snapshots/:id/export.json', access: ['risk', 'admin'] },
+  { method: 'GET', path: '/api/snapshots/:id/export.xlsx', access: ['risk', 'admin'] },
 ];
 
 function segments(path: string): string[] {

@@ -53,6 +53,7 @@ beforeEach(() => {
         const me = { id: 'u1', name: 'Anders Lund', email: 'anders.lund@nordvale.example', roles: currentRoles, csrfToken: 'token' };
         return new Response(JSON.stringify(me), { status: 200 });
       }
+      if (url.includes('/api/snapshots?')) return new Response(JSON.stringify({ snapshots: [], total: 0 }), { status: 200 });
       if (url.endsWith('/api/regions')) return new Response(JSON.stringify({ regions: [] }), { status: 200 });
       if (url.endsWith('/api/calibration-sets')) return new Response(JSON.stringify({ sets: [] }), { status: 200 });
       if (url.endsWith('/api/admin/role-mappings')) return new Response(JSON.stringify({ mappings: [] }), { status: 200 });
