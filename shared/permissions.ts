@@ -32,6 +32,9 @@ export const PERMISSIONS: readonly Permission[] = [
   { method: 'POST', path: '/api/runs', access: ['meteorologist'] },
   { method: 'GET', path: '/api/runs/:id/members', access: 'signed-in' },
   { method: 'POST', path: '/api/runs/:id/members/:member/retry', access: ['meteorologist'] },
+  { method: 'GET', path: '/api/runs/:id/diagnostics', access: 'signed-in' },
+  { method: 'GET', path: '/api/runs/:id/omega', access: 'signed-in' },
+  { method: 'GET', path: '/api/runs/:id/section', access: 'signed-in' },
   { method: 'GET', path: '/api/dev/outbox', access: 'signed-in' },
 ];
 
