@@ -8,6 +8,25 @@ import { divergingScale, fonts, palette } from '@shared/design-tokens.ts';
 /** Omega colours from most negative (strong ascent, teal) to most positive (strong descent, amber). */
 export const omegaColors: readonly string[] = [...divergingScale].reverse();
 
+/**
+ * The same meaning on a dark surface: the neutral middle is a dark slate, so "no vertical motion"
+ * recedes into the page and light coastlines stay readable, and stronger motion gets brighter
+ * (teal for ascent at the negative end, amber for descent at the positive end).
+ */
+export const omegaColorsDark: readonly string[] = [
+  palette.ascent.soft,
+  palette.ascent.mid,
+  palette.ascent.strong,
+  palette.slate[800],
+  palette.descent.strong,
+  palette.descent.mid,
+  palette.descent.soft,
+];
+
+export function omegaColorsFor(dark: boolean): readonly string[] {
+  return dark ? omegaColorsDark : omegaColors;
+}
+
 export const seriesColors = {
   qg: palette.ascent.strong,
   model: palette.slate[500],

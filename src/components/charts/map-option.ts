@@ -24,8 +24,6 @@ export interface FieldMapInput {
   describe: (value: number) => string;
   /** end labels of the colour legend, top (max) first */
   legendText: [string, string];
-  /** colour legend's handle labels */
-  legendFormat?: (value: number) => string;
 }
 
 const fmtDeg = (v: number, pos: string, neg: string) => `${Math.abs(Math.round(v * 100) / 100)}°${v >= 0 ? pos : neg}`;
@@ -40,9 +38,14 @@ interface RenderApi {
 export function renderCell(_params: unknown, api: RenderApi) {
   const a = api.coord([api.value(0), api.value(3)]);
   const b = api.coord([api.value(1), api.value(2)]);
+  // Whole pixels: neighbouring cells share their edge exactly, so no hairline seams show between them.
+  const x0 = Math.round(Math.min(a[0], b[0]));
+  const y0 = Math.round(Math.min(a[1], b[1]));
+  const x1 = Math.round(Math.max(a[0], b[0]));
+  const y1 = Math.round(Math.max(a[1], b[1]));
   return {
     type: 'rect',
-    shape: { x: Math.min(a[0], b[0]), y: Math.min(a[1], b[1]), width: Math.abs(b[0] - a[0]) + 0.5, height: Math.abs(b[1] - a[1]) + 0.5 },
+    shape: { x: x0, y: y0, width: Math.max(1, x1 - x0), height: Math.max(1, y1 - y0) },
     style: { fill: api.visual('color') },
   };
 }
@@ -109,8 +112,8 @@ export function buildFieldMapOption(input: FieldMapInput): Record<string, unknow
     backgroundColor: frame.background,
     animation: false,
     grid: { left: 48, right: 120, top: 12, bottom: 28 },
-    xAxis: { type: 'value', min: box.lonMin, max: box.lonMax, ...axis, splitLine: { show: false }, axisLabel: { ...axis.axisLabel, formatter: (v: number) => fmtDeg(v, 'E', 'W') } },
-    yAxis: { type: 'value', min: box.latMin, max: box.latMax, ...axis, splitLine: { show: false }, axisLabel: { ...axis.axisLabel, formatter: (v: number) => fmtDeg(v, 'N', 'S') } },
+    xAxis: { type: 'value', min: box.lonMin, max: box.lonMax, ...axis, splitLine: { show: false }, axisLabel: { ...axis.axisLabel, showMinLabel: false, showMaxLabel: false, formatter: (v: number) => fmtDeg(v, 'E', 'W') } },
+    yAxis: { type: 'value', min: box.latMin, max: box.latMax, ...axis, splitLine: { show: false }, axisLabel: { ...axis.axisLabel, showMinLabel: false, showMaxLabel: false, formatter: (v: number) => fmtDeg(v, 'N', 'S') } },
     visualMap: {
       type: 'continuous',
       seriesIndex: 0,
@@ -118,15 +121,15 @@ export function buildFieldMapOption(input: FieldMapInput): Record<string, unknow
       min: input.range.min,
       max: input.range.max,
       inRange: { color: [...input.colors] },
-      calculable: true,
-      realtime: true,
+      calculable: false,
       orient: 'vertical',
       right: 4,
       top: 'middle',
       itemHeight: 180,
+      itemWidth: 14,
       text: input.legendText,
-      textStyle: { color: frame.muted, fontFamily: frame.fontMono, fontSize: 10 },
-      formatter: input.legendFormat,
+      textGap: 6,
+      textStyle: { color: frame.muted, fontFamily: frame.fontMono, fontSize: 10, lineHeight: 13 },
     },
     tooltip: {
       trigger: 'item',

@@ -4,10 +4,10 @@ import { OMEGA_PART_LABELS } from '@shared/api/run-view.ts';
 import { FieldMap } from '@/components/charts/FieldMap.tsx';
 import { outlineRings, type LonLat } from '@/components/charts/geo.ts';
 import { Card } from '@/components/Page.tsx';
-import { omegaColors, symmetricRange } from '@/lib/chart-theme.ts';
+import { omegaColorsFor, symmetricRange, useDarkMode } from '@/lib/chart-theme.ts';
 import { formatValue, paPerSToHpaPerH } from '@/lib/format.ts';
 import { omegaQuery, regionsQuery } from './api.ts';
-import { describeOmega, omegaLegendFormat, omegaLegendText } from './options.ts';
+import { describeOmega, omegaLegendText } from './options.ts';
 import { PartSwitch } from './ViewControls.tsx';
 import type { ViewState } from './view-state.ts';
 
@@ -21,6 +21,7 @@ interface Props {
 
 /** The ascent map: omega at the chosen level and valid time, teal = ascent (negative omega). */
 export function AscentMapCard({ runId, view, onChange, picked, onPick }: Props) {
+  const dark = useDarkMode();
   const omega = useQuery({ ...omegaQuery(runId, view), placeholderData: keepPreviousData });
   const regions = useQuery(regionsQuery);
   const outlines = useMemo(
@@ -58,12 +59,11 @@ export function AscentMapCard({ runId, view, onChange, picked, onPick }: Props) 
             lon={data.lon}
             values={data.values}
             range={range}
-            colors={omegaColors}
+            colors={omegaColorsFor(dark)}
             outlines={outlines}
             line={picked}
             describe={describeOmega}
             legendText={omegaLegendText(range)}
-            legendFormat={omegaLegendFormat}
             onPick={onPick}
           />
         </div>

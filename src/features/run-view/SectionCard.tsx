@@ -29,7 +29,7 @@ export function SectionCard({ runId, view, line, onLine }: { runId: string; view
   });
   const option = useMemo(() => {
     if (!section.data) return null;
-    return buildSectionOption(section.data, symmetricRange(section.data.values.flat()), chartFrame(dark));
+    return buildSectionOption(section.data, symmetricRange(section.data.values.flat()), chartFrame(dark), dark);
   }, [section.data, dark]);
 
   return (
@@ -43,7 +43,7 @@ export function SectionCard({ runId, view, line, onLine }: { runId: string; view
         </p>
       ) : option && section.data ? (
         <>
-          <div className="h-72" data-testid="section-chart">
+          <div className="h-96" data-testid="section-chart">
             <EChart option={option} label="Cross-section of omega: distance along the line in km against pressure in hPa" className="h-full w-full" />
           </div>
           <p className="num mt-1 text-2xs text-ink-muted">

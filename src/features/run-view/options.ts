@@ -6,7 +6,7 @@ import type { Section } from '@shared/api/run-view.ts';
 import type { SignalRow } from '@shared/api/signals.ts';
 import { gridCells } from '@/components/charts/geo.ts';
 import { renderCell } from '@/components/charts/map-option.ts';
-import { axisStyle, omegaColors, seriesColors, tooltipStyle, type ChartFrame } from '@/lib/chart-theme.ts';
+import { axisStyle, omegaColorsFor, seriesColors, tooltipStyle, type ChartFrame } from '@/lib/chart-theme.ts';
 import { formatValue, paPerSToHpaPerH } from '@/lib/format.ts';
 
 const pad = (n: number) => String(n).padStart(2, '0');
@@ -25,15 +25,11 @@ export function describeOmega(paPerS: number): string {
 
 /** Legend labels at the ends of the omega scale, top (positive, descent) first. */
 export function omegaLegendText(range: { min: number; max: number }): [string, string] {
-  const both = (v: number) => `${formatValue(v, 'Pa/s', 2)} · ${formatValue(paPerSToHpaPerH(v), 'hPa/h', 0)}`;
-  return [`descent +${both(range.max)}`, `ascent ${both(range.min)}`];
+  const both = (v: number) => `${v > 0 ? '+' : ''}${formatValue(v, 'Pa/s', 2)}\n${v > 0 ? '+' : ''}${formatValue(paPerSToHpaPerH(v), 'hPa/h', 0)}`;
+  return [`descent\n${both(range.max)}`, `${both(range.min)}\nascent`];
 }
 
-export function omegaLegendFormat(v: number): string {
-  return `${v.toFixed(2)} Pa/s\n${paPerSToHpaPerH(v).toFixed(1)} hPa/h`;
-}
-
-export function buildSectionOption(section: Section, range: { min: number; max: number }, frame: ChartFrame): Record<string, unknown> {
+export function buildSectionOption(section: Section, range: { min: number; max: number }, frame: ChartFrame, dark = false): Record<string, unknown> {
   const axis = axisStyle(frame);
   const npts = section.distanceKm.length;
   const flat: (number | null)[] = new Array(section.levelsHpa.length * npts);
@@ -43,7 +39,17 @@ export function buildSectionOption(section: Section, range: { min: number; max: 
   return {
     animation: false,
     grid: { left: 64, right: 120, top: 12, bottom: 40 },
-    xAxis: { type: 'value', name: 'distance (km)', nameLocation: 'middle', nameGap: 26, min: 0, max: section.distanceKm[npts - 1], ...axis, splitLine: { show: false } },
+    xAxis: {
+      type: 'value',
+      name: 'distance (km)',
+      nameLocation: 'middle',
+      nameGap: 26,
+      min: 0,
+      max: Math.ceil(section.distanceKm[npts - 1]),
+      ...axis,
+      splitLine: { show: false },
+      axisLabel: { ...axis.axisLabel, showMaxLabel: false, formatter: (v: number) => String(Math.round(v)) },
+    },
     yAxis: { type: 'value', name: 'pressure (hPa)', nameLocation: 'middle', nameGap: 44, inverse: true, min: pMin, max: pMax, ...axis, splitLine: { show: false } },
     visualMap: {
       type: 'continuous',
@@ -51,14 +57,15 @@ export function buildSectionOption(section: Section, range: { min: number; max: 
       dimension: 4,
       min: range.min,
       max: range.max,
-      inRange: { color: [...omegaColors] },
-      calculable: true,
+      inRange: { color: [...omegaColorsFor(dark)] },
+      calculable: false,
       right: 4,
       top: 'middle',
       itemHeight: 140,
+      itemWidth: 14,
       text: omegaLegendText(range),
-      formatter: omegaLegendFormat,
-      textStyle: { color: frame.muted, fontFamily: frame.fontMono, fontSize: 10 },
+      textGap: 6,
+      textStyle: { color: frame.muted, fontFamily: frame.fontMono, fontSize: 10, lineHeight: 13 },
     },
     tooltip: {
       trigger: 'item',
@@ -132,7 +139,7 @@ export function buildCorrelationOption(levelsHpa: number[], correlation: (number
       {
         id: 'correlation',
         type: 'bar',
-        data: correlation.map((c) => ({ value: c, itemStyle: { color: c !== null && c < 0 ? seriesColors.ratio : seriesColors.qg } })),
+        data: correlation.map((c) => ({ value: c, itemStyle: { color: c !== null && c < 0 ? seriesColors.model : seriesColors.qg } })),
         barMaxWidth: 14,
       },
     ],

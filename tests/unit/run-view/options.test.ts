@@ -4,7 +4,7 @@ import type { Section } from '@shared/api/run-view.ts';
 import type { SignalRow } from '@shared/api/signals.ts';
 import { cellEdges, clipLines, gridCells, mapAspect, outlineRings } from '@/components/charts/geo.ts';
 import { buildFieldMapOption, polylinesToGappedSeries } from '@/components/charts/map-option.ts';
-import { chartFrame, niceCeil, omegaColors, symmetricRange } from '@/lib/chart-theme.ts';
+import { chartFrame, niceCeil, omegaColors, omegaColorsFor, symmetricRange } from '@/lib/chart-theme.ts';
 import {
   buildCorrelationOption,
   buildSectionOption,
@@ -23,6 +23,15 @@ describe('omega colour scale', () => {
     expect(omegaColors[0]).toBe(palette.ascent.strong);
     expect(omegaColors[omegaColors.length - 1]).toBe(palette.descent.strong);
     expect(omegaColors[3]).toBe(divergingScale[3]);
+  });
+
+  it('keeps teal on the negative half and amber on the positive half in the dark theme', () => {
+    const dark = omegaColorsFor(true);
+    const teal = Object.values(palette.ascent) as string[];
+    const amber = Object.values(palette.descent) as string[];
+    expect(dark.slice(0, 3).every((c) => teal.includes(c))).toBe(true);
+    expect(dark.slice(4).every((c) => amber.includes(c))).toBe(true);
+    expect(dark[3]).toBe(palette.slate[800]);
   });
 
   it('is symmetric around zero and rounded up to a nice magnitude', () => {
