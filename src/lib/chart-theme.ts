@@ -35,13 +35,13 @@ export const seriesColors = {
   caution: palette.caution.DEFAULT,
 } as const;
 
-/** A "nice" rounded-up magnitude (1, 2, 2.5 or 5 times a power of ten) for symmetric scales. */
+/** A "nice" rounded-up magnitude (1, 1.5, 2, 2.5, 3, 4, 5, 6 or 8 times a power of ten) for symmetric scales. */
 export function niceCeil(value: number): number {
   if (!(value > 0) || !Number.isFinite(value)) return 1;
   const power = 10 ** Math.floor(Math.log10(value));
   const n = value / power;
-  const step = [1, 2, 2.5, 5, 10].find((s) => n <= s + 1e-12) ?? 10;
-  return step * power;
+  const step = [1, 1.5, 2, 2.5, 3, 4, 5, 6, 8, 10].find((s) => n <= s + 1e-12) ?? 10;
+  return Number((step * power).toPrecision(12));
 }
 
 /** A colour range symmetric around zero, so white is always "no vertical motion". */

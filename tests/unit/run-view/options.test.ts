@@ -35,11 +35,13 @@ describe('omega colour scale', () => {
   });
 
   it('is symmetric around zero and rounded up to a nice magnitude', () => {
-    expect(symmetricRange([-0.31, 0.12, null])).toEqual({ min: -0.5, max: 0.5 });
+    expect(symmetricRange([-0.31, 0.12, null])).toEqual({ min: -0.4, max: 0.4 });
+    expect(symmetricRange([-0.52, 0.22])).toEqual({ min: -0.6, max: 0.6 });
     expect(symmetricRange([0.05, 1.7])).toEqual({ min: -2, max: 2 });
     expect(symmetricRange([null])).toEqual({ min: -0.1, max: 0.1 });
     expect(niceCeil(0.21)).toBeCloseTo(0.25, 12);
-    expect(niceCeil(7)).toBe(10);
+    expect(niceCeil(7)).toBe(8);
+    expect(niceCeil(9)).toBe(10);
   });
 
   it('the map option puts the teal end at the negative minimum of a symmetric visual map', () => {
@@ -54,8 +56,8 @@ describe('omega colour scale', () => {
       describe: describeOmega,
       legendText: ['top', 'bottom'],
     }) as { visualMap: { min: number; max: number; inRange: { color: string[] } }; series: { id: string; data: number[][] }[] };
-    expect(option.visualMap.min).toBe(-0.5);
-    expect(option.visualMap.max).toBe(0.5);
+    expect(option.visualMap.min).toBe(-0.4);
+    expect(option.visualMap.max).toBe(0.4);
     expect(option.visualMap.inRange.color[0]).toBe(palette.ascent.strong);
     const cells = option.series.find((s) => s.id === 'field')!.data;
     expect(cells).toHaveLength(5); // the missing value is left out, not drawn as zero
