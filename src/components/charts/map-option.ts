@@ -80,9 +80,9 @@ export function buildFieldMapOption(input: FieldMapInput): Record<string, unknow
       tooltip: { show: false },
     },
   ];
-  for (const region of input.outlines ?? []) {
+  for (const [index, region] of (input.outlines ?? []).entries()) {
     series.push({
-      id: `region-${region.name}`,
+      id: `region-${index}-${region.name}`,
       name: region.name,
       type: 'line',
       data: polylinesToGappedSeries(region.rings),

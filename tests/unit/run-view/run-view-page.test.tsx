@@ -37,6 +37,8 @@ const run = {
 
 type Me = { id: string; name: string; email: string; roles: string[]; csrfToken: string };
 let me: Me;
+let regions: unknown[] | null = null;
+let signalRows: unknown[] | null = null;
 const calls: { url: string; method: string; headers: Headers }[] = [];
 const json = (body: unknown, status = 200) => new Response(JSON.stringify(body), { status });
 
@@ -79,6 +81,8 @@ const diagnostics = {
 
 beforeEach(() => {
   calls.length = 0;
+  regions = null;
+  signalRows = null;
   setCsrfToken(null);
   vi.stubGlobal(
     'fetch',
@@ -100,6 +104,8 @@ beforeEach(() => {
       if (p === `/api/runs/${RUN_ID}/members/1/retry` && method === 'POST') return json({ retried: { runId: RUN_ID, member: 1 } }, 202);
       if (p === `/api/runs/${RUN_ID}/omega`) return json(omega(url));
       if (p === `/api/runs/${RUN_ID}/diagnostics`) return json(diagnostics);
+      if (p === '/api/regions' && regions) return json({ regions });
+      if (p === `/api/runs/${RUN_ID}/signals` && signalRows) return json({ rows: signalRows });
       return json({ error: { code: 'not_found', message: 'No such API route.' } }, 404);
     }),
   );
@@ -185,5 +191,41 @@ describe('Run view', () => {
     renderRunView();
     expect(await screen.findByText('solver diverged')).toBeInTheDocument();
     expect(screen.queryByRole('button', { name: /Retry member/ })).toBeNull();
+  });
+
+  it('draws region outlines when the regions endpoint answers, and small multiples of the regional signals', async () => {
+    me = { id: 'u1', name: 'Ingrid Solheim', email: 'i@nordvale.example', roles: ['trader'], csrfToken: 't1' };
+    regions = [
+      { id: 'fjell', name: 'Fjell catchment', kind: 'hydro', geometry: { type: 'Polygon', coordinates: [[[0, 50], [2, 50], [2, 52], [0, 50]]] } },
+      { id: 'sor', name: 'Sor solar zone', kind: 'solar', geometry: { type: 'MultiPolygon', coordinates: [[[[2, 50], [4, 50], [4, 51], [2, 50]]]] } },
+    ];
+    const row = (regionId: string, member: number, day: string, precipMm: number) => ({
+      runId: RUN_ID,
+      member,
+      regionId,
+      day,
+      precipMm,
+      snowShare: 0.2,
+      cloudPct: 70,
+      ghiKwhM2: 0.4,
+      solarGwh: 0.3,
+      inflowGwh: 5,
+      modelPrecipMm: 3,
+      modelCloudPct: 75,
+      hoursCovered: 24,
+      calibrationVersion: 1,
+      codeVersion: 'test',
+      inputChecksum: 'abc',
+    });
+    signalRows = [row('fjell', 0, '2026-12-01', 4), row('fjell', 1, '2026-12-01', 6), row('sor', 0, '2026-12-01', 1)];
+    renderRunView();
+    await waitFor(() => expect(screen.getAllByTestId('echart')[0].dataset.series).toContain('region-0-Fjell catchment'));
+    expect(screen.getAllByTestId('echart')[0].dataset.series).toContain('region-1-Sor solar zone');
+    const chooser = await screen.findByRole('combobox', { name: /Region/ });
+    expect(within(chooser).getByRole('option', { name: 'Fjell catchment' })).toBeInTheDocument();
+    for (const name of [/Precipitation .* in mm\/day/, /Snow share in %/, /Cloud cover .* in %/, /irradiation in kWh\/m²\/day/, /Solar generation in GWh\/day/, /Inflow energy in GWh\/day/]) {
+      expect(screen.getByRole('img', { name })).toBeInTheDocument();
+    }
+    expect(screen.queryByText(/No regional signals/)).toBeNull();
   });
 });
