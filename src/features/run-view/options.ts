@@ -225,11 +225,13 @@ export function buildSignalOption(panel: SignalPanel, s: DailySignals, frame: Ch
       return {
         ...base,
         tooltip: { trigger: 'axis', ...tooltipStyle(frame) },
-        yAxis: [yAxis(), { type: 'value', name: 'ratio', ...axis, splitLine: { show: false } }],
+        legend: { ...base.legend, top: 'auto', bottom: 0 },
+        grid: { ...base.grid, top: 18, bottom: 40 },
+        yAxis: [yAxis(), { type: 'value', name: '×', ...axis, splitLine: { show: false } }],
         series: [
           bar('diagnosed (mm)', s.precip, seriesColors.qg),
           bar('model (mm)', s.modelPrecip, seriesColors.model),
-          line('ratio diagnosed/model', s.precip.map((p, i) => precipRatio(p, s.modelPrecip[i])), seriesColors.ratio, { yAxisIndex: 1 }),
+          line('ratio diagnosed/model (×)', s.precip.map((p, i) => precipRatio(p, s.modelPrecip[i])), seriesColors.ratio, { yAxisIndex: 1 }),
         ],
       };
     case 'snow':
