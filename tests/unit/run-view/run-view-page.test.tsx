@@ -1,4 +1,4 @@
-import { fireEvent, render, screen, waitFor, within } from '@testing-library/react';
+import { act, fireEvent, render, screen, waitFor, within } from '@testing-library/react';
 import { createMemoryRouter, RouterProvider } from 'react-router-dom';
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
 import { Providers, createQueryClient } from '@/app/providers.tsx';
@@ -6,11 +6,23 @@ import { routes } from '@/app/routes.tsx';
 import { setCsrfToken } from '@/lib/api.ts';
 
 // Canvas charts do not render in happy-dom: stand in a div that shows what it was given.
-vi.mock('@/components/charts/EChart.tsx', () => ({
-  EChart: ({ label, option }: { label: string; option: { series?: { id?: string }[] } }) => (
-    <div role="img" aria-label={label} data-testid="echart" data-series={(option.series ?? []).map((s) => s.id ?? '').join(',')} />
-  ),
-}));
+// onReady gets a stand-in chart whose pixel <-> lat/lon conversion is the identity (x = lon, y = lat).
+const clickHandlers: ((e: { offsetX: number; offsetY: number }) => void)[] = [];
+vi.mock('@/components/charts/EChart.tsx', async () => {
+  const { useEffect } = await import('react');
+  return {
+    EChart: ({ label, option, onReady }: { label: string; option: { series?: { id?: string }[] }; onReady?: (chart: unknown) => void }) => {
+      useEffect(() => {
+        onReady?.({
+          getZr: () => ({ on: (_name: string, handler: (e: { offsetX: number; offsetY: number }) => void) => clickHandlers.push(handler) }),
+          containPixel: () => true,
+          convertFromPixel: (_finder: unknown, [x, y]: number[]) => [x, y],
+        });
+      }, []);
+      return <div role="img" aria-label={label} data-testid="echart" data-series={(option.series ?? []).map((s) => s.id ?? '').join(',')} />;
+    },
+  };
+});
 
 const RUN_ID = '11111111-1111-4111-8111-111111111111';
 const run = {
@@ -81,6 +93,7 @@ const diagnostics = {
 
 beforeEach(() => {
   calls.length = 0;
+  clickHandlers.length = 0;
   regions = null;
   signalRows = null;
   setCsrfToken(null);
@@ -172,6 +185,20 @@ describe('Run view', () => {
     fireEvent.change(screen.getByLabelText('To (lat, lon)'), { target: { value: '51.5, 3' } });
     fireEvent.click(screen.getByRole('button', { name: 'Draw section' }));
     await waitFor(() => expect(calls.some((c) => c.url.includes('/section?') && c.url.includes('from=50.5%2C1') && c.url.includes('to=51.5%2C3'))).toBe(true));
+  });
+
+  it('two clicks on the map draw the line and ask for that section; clicks outside the domain are ignored', async () => {
+    me = { id: 'u1', name: 'Ingrid Solheim', email: 'i@nordvale.example', roles: ['trader'], csrfToken: 't1' };
+    renderRunView();
+    await screen.findByTestId('field-map');
+    await waitFor(() => expect(clickHandlers.length).toBeGreaterThan(0));
+    const click = (lon: number, lat: number) => act(() => clickHandlers.forEach((h) => h({ offsetX: lon, offsetY: lat })));
+    click(40, 80); // far outside the 50-52N, 0-4E grid
+    click(0.5, 50.25);
+    click(3.5, 51.75);
+    await waitFor(() => expect(calls.some((c) => c.url.includes('/section?') && c.url.includes('from=50.25%2C0.5') && c.url.includes('to=51.75%2C3.5'))).toBe(true));
+    expect(screen.getByLabelText('From (lat, lon)')).toHaveValue('50.25, 0.5');
+    expect(screen.getAllByTestId('echart')[0].dataset.series).toContain('picked-line');
   });
 
   it('offers Retry on a failed member to a meteorologist, and sends it with the CSRF token', async () => {
