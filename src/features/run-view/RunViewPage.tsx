@@ -4,7 +4,8 @@ import { Link, useParams } from 'react-router-dom';
 import { CAUTIONS } from '@shared/cautions.ts';
 import type { LonLat } from '@/components/charts/geo.ts';
 import { CautionNote, EmptyState, PageHeader } from '@/components/Page.tsx';
-import { runViewQuery } from './api.ts';
+import { ApiError } from '@/lib/api.ts';
+import { diagnosticsQuery, runViewQuery } from './api.ts';
 import { AscentMapCard } from './AscentMapCard.tsx';
 import { MembersCard } from './MembersCard.tsx';
 import { ProfilesCard } from './ProfilesCard.tsx';
@@ -36,6 +37,9 @@ export function RunViewPage() {
   );
   const picked: LonLat[] = line ? [[line.from.lon, line.from.lat], [line.to.lon, line.to.lat]] : pending ? [[pending.lon, pending.lat]] : [];
   const ready = run.data?.state === 'ready';
+  // The same query the profiles card reads (cached once): a run marked ready without diagnosis rows gets an honest empty state.
+  const diagnostics = useQuery({ ...diagnosticsQuery(runId, view?.member ?? 'mean'), enabled: ready && view !== null, retry: false });
+  const noDiagnosis = diagnostics.error instanceof ApiError && diagnostics.error.status === 404;
 
   return (
     <div className="flex flex-col gap-4">
@@ -56,7 +60,11 @@ export function RunViewPage() {
         <>
           {ready && view ? <ViewControls run={run.data} view={view} onChange={setView} /> : null}
           <RunHeader run={run.data} />
-          {ready && view ? (
+          {ready && view && noDiagnosis ? (
+            <EmptyState icon="ascent" title="No diagnosis for this run">
+              The run is marked ready but the server holds no QG diagnosis for it: {diagnostics.error?.message}
+            </EmptyState>
+          ) : ready && view ? (
             <>
               <div className="grid gap-4 2xl:grid-cols-2">
                 <AscentMapCard runId={runId} view={view} onChange={setView} picked={picked} onPick={onPick} />

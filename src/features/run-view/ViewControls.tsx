@@ -2,6 +2,7 @@ import { useState, type ReactNode } from 'react';
 import { createPortal } from 'react-dom';
 import { OMEGA_PART_LABELS, OMEGA_PART_NAMES, type OmegaPartName } from '@shared/api/run-view.ts';
 import type { Run } from '@shared/api/runs.ts';
+import { formatCycle } from '@/lib/format.ts';
 import type { MemberChoice } from './api.ts';
 import { formatValidTime } from './options.ts';
 import type { ViewState } from './view-state.ts';
@@ -27,7 +28,7 @@ export function ViewControls({ run, view, onChange }: { run: Run; view: ViewStat
   const go = (i: number) => onChange({ step: steps[Math.min(steps.length - 1, Math.max(0, i))] });
   return (
     <TopBar>
-      <span className="hidden truncate text-xs font-medium xl:inline">{run.model ?? 'Run'}</span>
+      <span className="hidden truncate text-xs font-medium xl:inline">{`${run.model ?? 'Run'} · ${run.cycle ? formatCycle(run.cycle) : ''}`}</span>
       <div className="flex items-center gap-1.5" role="group" aria-label="Valid time">
         <button type="button" className={buttonClass} onClick={() => go(index - 1)} disabled={index === 0} aria-label="Previous valid time">
           ‹
