@@ -22,6 +22,7 @@ import { authRouter } from './routes/auth.ts';
 import { healthRouter } from './routes/health.ts';
 import { runsRouter } from './routes/runs.ts';
 import { snapshotsRouter } from './routes/snapshots.ts';
+import { runViewRouter } from './routes/run-view.ts';
 import { meRouter } from './routes/me.ts';
 import { regionsRouter } from './routes/regions.ts';
 import { calibrationRouter } from './routes/calibration.ts';
@@ -90,6 +91,7 @@ export function createApp(deps: AppDeps): express.Express {
   app.use('/api', appInfoRouter(deps));
   app.use('/api', runsRouter(deps));
   app.use('/api', snapshotsRouter(deps));
+  app.use('/api', runViewRouter(deps));
   if (!config.isProduction) app.use('/api', outboxRouter(deps));
   app.use('/api', meRouter(deps));
   app.use('/api', auditRouter(deps));

@@ -16,6 +16,7 @@ import { PROJECT_ROOT } from '../../server/config.ts';
 import { scenarioSpread } from '../../server/science/statistics.ts';
 import { getSnapshotRow, sealAfterPublish, sealKeyFor, verifyStoredRow } from '../../server/services/snapshots.ts';
 import { signIn, startTestApp, type Client, type TestApp } from './support.ts';
+import { ensureDefaultCalibrationSet, latestCalibrationSet } from '../../server/services/calibration.ts';
 
 const tag = `${process.pid}-${Date.now().toString(36)}`;
 const MODEL = `SNAPTEST-${tag}`;
@@ -42,8 +43,9 @@ const precipOf = (run: number, member: number, region: number, dayIx: number) =>
 
 async function seed() {
   const q = (text: string, values: unknown[] = []) => t.db.pool.query(text, values);
-  const cal = await q(`INSERT INTO calibration_sets (name, params) VALUES ($1, '{}'::jsonb) RETURNING version`, [`snapshot test ${tag}`]);
-  calibrationVersion = cal.rows[0].version;
+  // The real first set (the defaults), shared with the other test files of this database.
+  await ensureDefaultCalibrationSet(t.db.db);
+  calibrationVersion = (await latestCalibrationSet(t.db.db)).version;
   const geometry = JSON.stringify({ type: 'Polygon', coordinates: [[[10, 60], [11, 60], [11, 61], [10, 60]]] });
   await q(`INSERT INTO regions (id, name, kind, properties, geometry, area_km2) VALUES ($1, 'Test catchment', 'hydro', '{}', $3, 1000), ($2, 'Test zone', 'solar', '{}', $3, 500)`, [
     HYDRO,
