@@ -33,6 +33,7 @@ const schema = z
     TRUST_PROXY: flag.default(false),
     CODE_VERSION: z.string().min(1).optional(),
     IN_PROCESS_WORKER: flag.default(true),
+    QUEUE_SCHEMA: z.string().regex(/^[a-z_][a-z0-9_]{0,40}$/, 'must be a lower-case SQL identifier').default('pgboss'),
     SNAPSHOT_AFTER_PUBLISH: flag.default(false),
     SMTP_URL: z.string().regex(/^smtps?:\/\//, 'must be an smtp:// or smtps:// URL').optional(),
     MAIL_FROM: z.string().min(3).default('Liftwise <liftwise@nordvale.example>'),
@@ -85,6 +86,7 @@ const schema = z
       trustProxy: env.TRUST_PROXY,
       codeVersion: env.CODE_VERSION ?? readCodeVersion(),
       inProcessWorker: env.IN_PROCESS_WORKER,
+      queueSchema: env.QUEUE_SCHEMA,
       /** seal a snapshot automatically after each published regime call */
       snapshotAfterPublish: env.SNAPSHOT_AFTER_PUBLISH,
       /** null: no mail server configured; outside production the local mail catcher stands in */

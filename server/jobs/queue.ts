@@ -25,8 +25,12 @@ export interface JobQueue {
 
 const RETRY = { retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds: 60 * 60 } as const;
 
-export async function createQueue(databaseUrl: string, logger: Logger): Promise<JobQueue> {
-  const boss = new PgBoss({ connectionString: databaseUrl, schema: 'pgboss', max: 4, supervise: true, schedule: false });
+/**
+ * `schema` keeps the queue's tables apart: every process of one deployment uses the same one
+ * (QUEUE_SCHEMA); tests give each app its own, so that no app takes another's jobs.
+ */
+export async function createQueue(databaseUrl: string, logger: Logger, schema = 'pgboss'): Promise<JobQueue> {
+  const boss = new PgBoss({ connectionString: databaseUrl, schema, max: 4, supervise: true, schedule: false });
   boss.on('error', (err) => logger.error({ err }, 'queue error'));
   await boss.start();
   for (const name of Object.values(QUEUE_NAMES)) await boss.createQueue(name, { name, ...RETRY });

@@ -41,6 +41,7 @@ import { latestCalibrationSet } from './calibration.ts';
 import { readOmegaPart } from './derived-store.ts';
 import type { MemberDeriver } from './pipeline.ts';
 import { listActiveRegions } from './regions.ts';
+import { regionPropertiesSchema } from '@shared/regions.ts';
 
 /** A region as the computation needs it (a row of the regions table, or a feature of a file). */
 export interface SignalRegion {
@@ -327,7 +328,10 @@ const INSERT_CHUNK = 500;
  */
 export const signalsDeriver: MemberDeriver = async ({ deps, run, member, reader }) => {
   const db = deps.db.db;
-  const active = await listActiveRegions(db);
+  // A region stored without valid plant parameters (written around the API) is left out and named, not fatal.
+  const stored = await listActiveRegions(db);
+  const active = stored.filter((r) => regionPropertiesSchema.safeParse(r.properties).success);
+  const unusable = stored.filter((r) => !active.includes(r)).map((r) => `Signals: region ${r.id} has invalid parameters and was left out.`);
   if (active.length === 0) return;
   const calibration = await latestCalibrationSet(db);
   const source: MemberFieldSource = {
@@ -336,7 +340,9 @@ export const signalsDeriver: MemberDeriver = async ({ deps, run, member, reader 
     readField: (name, step) => reader.readField(name, member, step),
     readOmega: (step) => readOmegaPart(deps.config.storageDir, run.id, member, step, 'total'),
   };
-  const { rows, warnings } = await computeMemberSignals(source, active, calibration.parameters);
+  const computed = await computeMemberSignals(source, active, calibration.parameters);
+  const { rows } = computed;
+  const warnings = [...unusable, ...computed.warnings];
   const values = rows.map((r) => ({
     runId: run.id,
     member,

@@ -47,10 +47,12 @@ async function seed() {
   await ensureDefaultCalibrationSet(t.db.db);
   calibrationVersion = (await latestCalibrationSet(t.db.db)).version;
   const geometry = JSON.stringify({ type: 'Polygon', coordinates: [[[10, 60], [11, 60], [11, 61], [10, 60]]] });
-  await q(`INSERT INTO regions (id, name, kind, properties, geometry, area_km2) VALUES ($1, 'Test catchment', 'hydro', '{}', $3, 1000), ($2, 'Test zone', 'solar', '{}', $3, 500)`, [
+  await q(`INSERT INTO regions (id, name, kind, properties, geometry, area_km2) VALUES ($1, 'Test catchment', 'hydro', $4, $3, 1000), ($2, 'Test zone', 'solar', $5, $3, 500)`, [
     HYDRO,
     SOLAR,
     geometry,
+    JSON.stringify({ id: HYDRO, name: 'Test catchment', kind: 'hydro', headM: 300, efficiency: 0.9, runoffCoefficient: 0.7, recessionDays: 10 }),
+    JSON.stringify({ id: SOLAR, name: 'Test zone', kind: 'solar', capacityMw: 100, tiltDeg: 30, azimuthDeg: 180, lossesPct: 14 }),
   ]);
   const runIds: string[] = [];
   for (const [i, cycle] of [OLD_CYCLE, NEW_CYCLE].entries()) {

@@ -42,6 +42,8 @@ export const inertQueue: JobQueue = {
  * The app with a real queue and, unless `workers: false`, in-process workers (one pool thread);
  * DATA_DIR is a fresh temporary folder (uploads, keys, caught mail) removed at close.
  */
+let appCount = 0;
+
 export async function startTestApp(env: Record<string, string> = {}, options: { workers?: boolean } = {}): Promise<TestApp> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'liftwise-test-'));
   const server = http.createServer();
@@ -55,12 +57,14 @@ export async function startTestApp(env: Record<string, string> = {}, options: { 
     DATA_DIR: dataDir,
     PUBLIC_URL: baseUrl,
     AUTH_RATE_LIMIT_PER_MINUTE: '10000',
+    // A queue of its own: apps of other test files (other projects run at the same time) must not take its jobs.
+    QUEUE_SCHEMA: `pgboss_t${process.pid}_${++appCount}`,
     ...env,
   });
   const logger = createLogger('silent');
   const db = createDb(config.databaseUrl, 5);
   await applyMigrations(db.db, db.pool);
-  const queue = await createQueue(config.databaseUrl, logger);
+  const queue = await createQueue(config.databaseUrl, logger, config.queueSchema);
   const workers = options.workers !== false ? await startAllWorkers({ db, config, queue, logger }, { threads: 1 }) : null;
   server.on('request', createApp({ config, db, logger, queue }));
   return {
