@@ -21,6 +21,7 @@ import { auditRouter } from './routes/audit.ts';
 import { authRouter } from './routes/auth.ts';
 import { healthRouter } from './routes/health.ts';
 import { runsRouter } from './routes/runs.ts';
+import { scenariosRouter } from './routes/scenarios.ts';
 import { meRouter } from './routes/me.ts';
 
 export interface AppDeps {
@@ -82,6 +83,7 @@ export function createApp(deps: AppDeps): express.Express {
   app.use('/api', healthRouter(deps));
   app.use('/api', appInfoRouter(deps));
   app.use('/api', runsRouter(deps));
+  app.use('/api', scenariosRouter(deps));
   if (!config.isProduction) app.use('/api', outboxRouter(deps));
   app.use('/api', meRouter(deps));
   app.use('/api', auditRouter(deps));

@@ -32,6 +32,13 @@ export const PERMISSIONS: readonly Permission[] = [
   { method: 'POST', path: '/api/runs', access: ['meteorologist'] },
   { method: 'GET', path: '/api/runs/:id/members', access: 'signed-in' },
   { method: 'POST', path: '/api/runs/:id/members/:member/retry', access: ['meteorologist'] },
+  { method: 'GET', path: '/api/scenarios', access: ['trader', 'risk', 'meteorologist', 'admin'] },
+  { method: 'GET', path: '/api/scenarios/summary', access: ['trader', 'risk', 'meteorologist', 'admin'] },
+  { method: 'GET', path: '/api/scenarios/export.xlsx', access: ['trader', 'risk'] },
+  { method: 'GET', path: '/api/scenarios/export.csv', access: ['trader', 'risk'] },
+  { method: 'GET', path: '/api/scenario-views', access: ['trader', 'risk', 'meteorologist', 'admin'] },
+  { method: 'POST', path: '/api/scenario-views', access: ['trader', 'risk', 'meteorologist', 'admin'] },
+  { method: 'DELETE', path: '/api/scenario-views/:id', access: ['trader', 'risk', 'meteorologist', 'admin'] },
   { method: 'GET', path: '/api/dev/outbox', access: 'signed-in' },
 ];
 
