@@ -40,7 +40,7 @@ export const WETTER_SIGN: Record<ScenarioQuantity, 1 | -1> = {
 export const SORT_COLUMNS = ['region', 'kind', 'day', 'model', 'cycle', 'member', 'weightPct', ...SCENARIO_QUANTITIES] as const;
 export type SortColumn = (typeof SORT_COLUMNS)[number];
 
-const NUMBER_FILTER_OPS = ['eq', 'lt', 'lte', 'gt', 'gte'] as const;
+export const NUMBER_FILTER_OPS = ['eq', 'lt', 'lte', 'gt', 'gte'] as const;
 export type NumberFilterOp = (typeof NUMBER_FILTER_OPS)[number];
 export interface NumberFilter {
   column: ScenarioQuantity | 'weightPct';
