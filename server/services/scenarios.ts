@@ -18,7 +18,7 @@
  *  - the grid shows weightPct, the weight as % of all scenarios in scope; percentiles normalise
  *    the weights of whatever rows the filter keeps, so only ratios matter.
  */
-import { and, asc, count, desc, eq, gte, ilike, inArray, isNotNull, lt, lte, ne, or, sql, type SQL } from 'drizzle-orm';
+import { and, asc, count, desc, eq, gte, ilike, inArray, isNotNull, lt, lte, max, ne, or, sql, type SQL } from 'drizzle-orm';
 import {
   SCENARIO_QUANTITIES,
   type Band,
@@ -55,6 +55,8 @@ export interface Scope {
   weights: WeightSource;
   /** members allowed by a cluster filter, or null */
   clusterMembers: { runId: string; members: number[] } | null;
+  /** the newest signal row id when the scope was resolved */
+  dataVersion: number;
 }
 
 const scenarioKey = (runId: string, member: number) => `${runId}:${member}`;
@@ -168,11 +170,19 @@ export async function scenarioWeights(db: Database, rs: RunWithMembers[]): Promi
   return { weightPct, weights: used ? call.source : { kind: 'equal', callId: null, publishedAt: null } };
 }
 
+/** The newest signal row's id: any new row changes it, so cached orderings keyed on it go stale at once. */
+async function dataVersion(db: Database): Promise<number> {
+  const [row] = await db.select({ v: max(signalRows.id) }).from(signalRows);
+  return row?.v ?? 0;
+}
+
 export async function resolveScope(db: Database, f: ScenarioFilter): Promise<Scope> {
-  const clusterMembers = await clusterFilter(db, f);
-  const rs = await scopeRuns(db, f, clusterMembers);
+  const [{ clusterMembers, rs }, version] = await Promise.all([
+    clusterFilter(db, f).then(async (clusterMembers) => ({ clusterMembers, rs: await scopeRuns(db, f, clusterMembers) })),
+    dataVersion(db),
+  ]);
   const { weightPct, weights } = await scenarioWeights(db, rs);
-  return { runs: rs.map(({ id, model, cycle, isEnsemble }) => ({ id, model, cycle, isEnsemble })), weightPct, weights, clusterMembers };
+  return { runs: rs.map(({ id, model, cycle, isEnsemble }) => ({ id, model, cycle, isEnsemble })), weightPct, weights, clusterMembers, dataVersion: version };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -224,6 +234,7 @@ export function rowConditions(f: ScenarioFilter, scope: Scope, options: { number
 }
 
 const rowColumns = {
+  id: signalRows.id,
   runId: signalRows.runId,
   model: runs.model,
   cycle: runs.cycle,
@@ -252,14 +263,6 @@ function rowsQuery(db: Database) {
     .leftJoin(regionClimatology, climatologyJoin);
 }
 
-function countQuery(db: Database) {
-  return db
-    .select({ n: count() })
-    .from(signalRows)
-    .innerJoin(runs, eq(runs.id, signalRows.runId))
-    .innerJoin(regions, eq(regions.id, signalRows.regionId))
-    .leftJoin(regionClimatology, climatologyJoin);
-}
 
 function orderBy(q: Pick<ScenarioPageQuery, 'sort' | 'dir'>, scope: Scope): SQL[] {
   const direction = q.dir === 'desc' ? sql`desc` : sql`asc`;
@@ -278,7 +281,7 @@ function orderBy(q: Pick<ScenarioPageQuery, 'sort' | 'dir'>, scope: Scope): SQL[
 
 type RawRow = Awaited<ReturnType<typeof rowsQuery>>[number];
 
-function toScenarioRow(r: RawRow, scope: Scope): ScenarioRow {
+function toScenarioRow({ id: _id, ...r }: RawRow, scope: Scope): ScenarioRow {
   return {
     ...r,
     model: r.model ?? '',
@@ -288,25 +291,83 @@ function toScenarioRow(r: RawRow, scope: Scope): ScenarioRow {
   };
 }
 
-/** One page of rows in the requested order. */
-export async function fetchRows(db: Database, f: ScenarioFilter, scope: Scope, q: Pick<ScenarioPageQuery, 'sort' | 'dir' | 'offset' | 'limit'>): Promise<ScenarioRow[]> {
-  const rows = await rowsQuery(db)
+/** Which joins a filter and sort need: paging only joins what it filters or sorts by. */
+function joinsNeeded(f: ScenarioFilter, sort?: string) {
+  const anomaly = sort === 'anomalyMm' || (f.nf ?? []).some((x) => x.column === 'anomalyMm');
+  return {
+    regions: Boolean(f.kind || f.q || sort === 'region' || sort === 'kind'),
+    runs: Boolean(f.q || sort === 'model' || sort === 'cycle'),
+    climatology: anomaly,
+  };
+}
+
+function narrowQuery<T extends Record<string, unknown>>(db: Database, columns: T, f: ScenarioFilter, sort?: string) {
+  const need = joinsNeeded(f, sort);
+  let q = db
+    .select(columns as Record<string, never>)
+    .from(signalRows)
+    .$dynamic();
+  if (need.runs) q = q.innerJoin(runs, eq(runs.id, signalRows.runId));
+  if (need.regions) q = q.innerJoin(regions, eq(regions.id, signalRows.regionId));
+  if (need.climatology) q = q.leftJoin(regionClimatology, climatologyJoin);
+  return q;
+}
+
+type SortSpec = Pick<ScenarioPageQuery, 'sort' | 'dir'>;
+
+/**
+ * The ids of every row of a filter in the requested order. Ordering and paging run on signal_rows
+ * alone (joined only where the filter or sort needs it), and the ordered ids are kept for
+ * ORDER_TTL_MS per filter, sort, scope and data version: a trader paging through 50,000 rows, or
+ * twenty traders on the same default view, sort once, and each page then reads only its own rows.
+ * A new signal row, run or published call changes the key; an edited region name or climatology
+ * shows within the TTL.
+ */
+const ORDER_TTL_MS = 30_000;
+const ORDER_CACHE_SIZE = 32;
+const orderCache = new Map<string, { at: number; ids: Promise<number[]> }>();
+
+export function sortedIds(db: Database, f: ScenarioFilter, scope: Scope, q: SortSpec): Promise<number[]> {
+  const filter = { ...f, sort: undefined, dir: undefined, offset: undefined, limit: undefined };
+  const key = JSON.stringify([filter, q.sort, q.dir, scope.runs.map((r) => r.id), scope.weights.callId, scope.dataVersion]);
+  const now = Date.now();
+  const hit = orderCache.get(key);
+  if (hit && now - hit.at < ORDER_TTL_MS) return hit.ids;
+  const ids = narrowQuery(db, { id: signalRows.id }, f, q.sort)
     .where(rowConditions(f, scope))
     .orderBy(...orderBy(q, scope))
-    .limit(q.limit)
-    .offset(q.offset);
-  return rows.map((r) => toScenarioRow(r, scope));
+    .then((rows) => (rows as unknown as Array<{ id: number }>).map((r) => r.id));
+  orderCache.delete(key);
+  orderCache.set(key, { at: now, ids });
+  ids.catch(() => orderCache.delete(key));
+  for (const [k, v] of orderCache) if (orderCache.size > ORDER_CACHE_SIZE || now - v.at >= ORDER_TTL_MS) orderCache.delete(k);
+  return ids;
+}
+
+/** The rows of the given ids, in that order. */
+export async function rowsByIds(db: Database, ids: number[], scope: Scope): Promise<ScenarioRow[]> {
+  if (!ids.length) return [];
+  const rows = await rowsQuery(db).where(inArray(signalRows.id, ids));
+  const byId = new Map(rows.map((r) => [r.id, r]));
+  return ids.flatMap((id) => (byId.has(id) ? [toScenarioRow(byId.get(id)!, scope)] : []));
+}
+
+/** One page of rows in the requested order. */
+export async function fetchRows(db: Database, f: ScenarioFilter, scope: Scope, q: Pick<ScenarioPageQuery, 'sort' | 'dir' | 'offset' | 'limit'>): Promise<ScenarioRow[]> {
+  const ids = await sortedIds(db, f, scope, q);
+  return rowsByIds(db, ids.slice(q.offset, q.offset + q.limit), scope);
 }
 
 export async function countRows(db: Database, f: ScenarioFilter, scope: Scope): Promise<number> {
-  const [{ n }] = await countQuery(db).where(rowConditions(f, scope));
+  const [{ n }] = (await narrowQuery(db, { n: count() }, f).where(rowConditions(f, scope))) as unknown as Array<{ n: number }>;
   return n;
 }
 
 export async function scenarioPage(db: Database, q: ScenarioPageQuery): Promise<ScenarioPage> {
   const scope = await resolveScope(db, q);
-  const [rows, total] = await Promise.all([fetchRows(db, q, scope, q), countRows(db, q, scope)]);
-  return { rows, total, offset: q.offset, limit: q.limit, runs: scope.runs, weights: scope.weights };
+  const ids = await sortedIds(db, q, scope, q);
+  const rows = await rowsByIds(db, ids.slice(q.offset, q.offset + q.limit), scope);
+  return { rows, total: ids.length, offset: q.offset, limit: q.limit, runs: scope.runs, weights: scope.weights };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -371,15 +432,35 @@ export function summariseScenarios(current: WeightedValues[], previous: Weighted
   return out.sort((a, b) => (a.region === b.region ? a.day.localeCompare(b.day) : a.region.localeCompare(b.region)));
 }
 
+const valueColumns = {
+  runId: signalRows.runId,
+  member: signalRows.member,
+  regionId: signalRows.regionId,
+  day: signalRows.day,
+  precipMm: signalRows.precipMm,
+  anomalyMm: anomalyExpr,
+  snowShare: signalRows.snowShare,
+  cloudPct: signalRows.cloudPct,
+  ghiKwhM2: signalRows.ghiKwhM2,
+  solarGwh: signalRows.solarGwh,
+  inflowGwh: signalRows.inflowGwh,
+};
+type ValueRow = { [K in keyof typeof valueColumns]: K extends 'member' ? number : K extends 'runId' | 'regionId' | 'day' ? string : number | null };
+
+/** The rows of a filter as the summary needs them: narrow, with region names from one lookup. */
 async function weightedValues(db: Database, f: ScenarioFilter, scope: Scope, options: { numberFilters?: boolean; clusters?: boolean } = {}): Promise<WeightedValues[]> {
-  const rows = await rowsQuery(db).where(rowConditions(f, scope, options));
+  const [rows, names] = await Promise.all([
+    narrowQuery(db, valueColumns, { ...f, nf: undefined }, 'anomalyMm').where(rowConditions(f, scope, options)) as unknown as Promise<ValueRow[]>,
+    db.select({ id: regions.id, name: regions.name, kind: regions.kind }).from(regions),
+  ]);
+  const regionOf = new Map(names.map((r) => [r.id, r]));
   return rows.map((r) => ({
     regionId: r.regionId,
-    region: r.region,
-    kind: r.kind,
+    region: regionOf.get(r.regionId)?.name ?? r.regionId,
+    kind: regionOf.get(r.regionId)?.kind ?? '',
     day: r.day,
     weight: scope.weightPct.get(scenarioKey(r.runId, r.member)) ?? 0,
-    values: Object.fromEntries(SCENARIO_QUANTITIES.map((q) => [q, r[q]])) as WeightedValues['values'],
+    values: { precipMm: r.precipMm, anomalyMm: r.anomalyMm, snowShare: r.snowShare, cloudPct: r.cloudPct, ghiKwhM2: r.ghiKwhM2, solarGwh: r.solarGwh, inflowGwh: r.inflowGwh },
   }));
 }
 
@@ -392,7 +473,12 @@ export async function scenarioSummary(db: Database, f: ScenarioFilter): Promise<
   const scope = await resolveScope(db, f);
   const prevRuns = await previousCycleRuns(db, scope.runs);
   const prevWeights = await scenarioWeights(db, prevRuns);
-  const prevScope: Scope = { runs: prevRuns.map(({ id, model, cycle, isEnsemble }) => ({ id, model, cycle, isEnsemble })), ...prevWeights, clusterMembers: null };
+  const prevScope: Scope = {
+    runs: prevRuns.map(({ id, model, cycle, isEnsemble }) => ({ id, model, cycle, isEnsemble })),
+    ...prevWeights,
+    clusterMembers: null,
+    dataVersion: scope.dataVersion,
+  };
   const [current, previous] = await Promise.all([
     weightedValues(db, f, scope),
     prevRuns.length ? weightedValues(db, f, prevScope, { numberFilters: false, clusters: false }) : Promise.resolve([]),

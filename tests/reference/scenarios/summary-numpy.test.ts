@@ -48,8 +48,8 @@ describe('summariseScenarios with equal weights vs numpy.percentile (reference t
     const samples: number[][] = [];
     for (const r of out)
       for (const q of SCENARIO_QUANTITIES) {
-        samples.push(current.filter((x) => x.regionId === r.regionId && x.day === r.day).map((x) => x.values[q]));
-        samples.push(previous.filter((x) => x.regionId === r.regionId && x.day === r.day).map((x) => x.values[q]));
+        samples.push(current.filter((x) => x.regionId === r.regionId && x.day === r.day).map((x) => x.values[q] as number));
+        samples.push(previous.filter((x) => x.regionId === r.regionId && x.day === r.day).map((x) => x.values[q] as number));
       }
     const reference = numpyPercentiles(samples);
     let k = 0;
