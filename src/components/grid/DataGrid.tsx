@@ -14,6 +14,7 @@ import {
   RowApiModule,
   RowStyleModule,
   TextFilterModule,
+  TooltipModule,
   themeQuartz,
   ValidationModule,
 } from 'ag-grid-community';
@@ -26,6 +27,7 @@ ModuleRegistry.registerModules([
   InfiniteRowModelModule,
   NumberFilterModule,
   TextFilterModule,
+  TooltipModule,
   PinnedRowModule,
   CellStyleModule,
   RowStyleModule,
@@ -60,10 +62,16 @@ export type DataGridProps<T> = AgGridReactProps<T> & { gridRef?: Ref<AgGridReact
 export function DataGrid<T>({ gridRef, height = 520, ...props }: DataGridProps<T>) {
   return (
     <div style={{ height }} className="w-full">
-      <AgGridReact<T> ref={gridRef} theme={liftwiseGridTheme} suppressCellFocus={false} animateRows={false} {...props} />
+      <AgGridReact<T>
+        ref={gridRef}
+        theme={liftwiseGridTheme}
+        animateRows={false}
+        {...props}
+        defaultColDef={{ wrapHeaderText: true, autoHeaderHeight: true, ...props.defaultColDef }}
+      />
     </div>
   );
 }
 
 /** Column defaults for figures: right-aligned monospace tabular digits. */
-export const numberColumn = { type: 'rightAligned', cellClass: 'num', headerClass: 'text-right' } as const;
+export const numberColumn = { type: 'rightAligned', cellClass: 'num text-right', headerClass: 'text-right' } as const;

@@ -24,6 +24,7 @@ export function fanChartOption({ rows, quantity, dark }: FanChartProps): echarts
   // Same meaning as every other colour: wetter/cloudier quantities in teal, sunnier ones in amber.
   const tone = WETTER_SIGN[quantity] > 0 ? palette.ascent : palette.descent;
   const ink = dark ? palette.slate[200] : palette.slate[700];
+  const rule = dark ? palette.slate[800] : palette.slate[200];
   const days = rows.map((r) => r.day);
   const s = rows.map((r) => r.stats[quantity]);
   const fmt = (v: unknown) => (typeof v === 'number' ? `${v.toFixed(digits)} ${unit}` : '–');
@@ -33,7 +34,7 @@ export function fanChartOption({ rows, quantity, dark }: FanChartProps): echarts
     legend: { top: 4, textStyle: { color: ink }, data: ['P10–P90', 'P50', 'Previous cycle P50'] },
     tooltip: { trigger: 'axis', valueFormatter: fmt },
     xAxis: { type: 'category', data: days, axisLabel: { color: ink, fontFamily: fonts.mono.join(',') } },
-    yAxis: { type: 'value', name: `${label} (${unit})`, nameTextStyle: { color: ink }, axisLabel: { color: ink, fontFamily: fonts.mono.join(',') } },
+    yAxis: { type: 'value', name: `${label} (${unit})`, nameTextStyle: { color: ink }, splitLine: { lineStyle: { color: rule } }, axisLabel: { color: ink, fontFamily: fonts.mono.join(',') } },
     series: [
       // the band: an invisible P10 line with P90 - P10 stacked on top of it
       { name: 'P10', type: 'line', data: s.map((x) => x.p10), stack: 'band', lineStyle: { opacity: 0 }, symbol: 'none', tooltip: { show: false } },
@@ -44,7 +45,7 @@ export function fanChartOption({ rows, quantity, dark }: FanChartProps): echarts
         stack: 'band',
         lineStyle: { opacity: 0 },
         symbol: 'none',
-        areaStyle: { color: tone.soft, opacity: dark ? 0.35 : 0.8 },
+        areaStyle: { color: dark ? tone.mid : tone.soft, opacity: dark ? 0.3 : 0.8 },
         itemStyle: { color: tone.soft },
         tooltip: { valueFormatter: (v: unknown) => (typeof v === 'number' ? `width ${v.toFixed(digits)} ${unit}` : '–') },
       },

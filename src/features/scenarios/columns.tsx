@@ -57,10 +57,15 @@ const anomalyClasses = changeClassRules('anomalyMm');
 
 export const scenarioColumns: (ColDef<ScenarioRow> | ColGroupDef<ScenarioRow>)[] = [
   {
-    headerName: 'Scenario',
+    headerName: 'Where and when',
     children: [
       { field: 'region', colId: 'region', headerName: 'Region', pinned: 'left', width: 150, sortable: true },
       { field: 'day', colId: 'day', headerName: 'Day (UTC)', pinned: 'left', width: 104, cellClass: 'num', sortable: true },
+    ],
+  },
+  {
+    headerName: 'Scenario',
+    children: [
       { field: 'kind', colId: 'kind', headerName: 'Kind', width: 70, sortable: true },
       { field: 'model', colId: 'model', headerName: 'Model', width: 90, sortable: true },
       { field: 'cycle', colId: 'cycle', headerName: 'Cycle (UTC)', width: 120, cellClass: 'num', sortable: true, valueFormatter: (p) => (p.value ? formatCycle(p.value as string) : '') },
@@ -70,7 +75,7 @@ export const scenarioColumns: (ColDef<ScenarioRow> | ColGroupDef<ScenarioRow>)[]
   },
   {
     headerName: 'Precipitation',
-    children: [quantityColumn('precipMm'), quantityColumn('anomalyMm', { cellClassRules: anomalyClasses, cellClass: 'num' }), quantityColumn('snowShare', { width: 110 })],
+    children: [quantityColumn('precipMm'), quantityColumn('anomalyMm', { cellClassRules: anomalyClasses }), quantityColumn('snowShare', { width: 110 })],
   },
   { headerName: 'Cloud', children: [quantityColumn('cloudPct', { width: 96 })] },
   { headerName: 'Solar', children: [quantityColumn('ghiKwhM2'), quantityColumn('solarGwh')] },
@@ -81,13 +86,13 @@ const SUMMARY_QUANTITIES: ScenarioQuantity[] = ['precipMm', 'cloudPct', 'solarGw
 
 export const summaryColumns: (ColDef<SummaryRow> | ColGroupDef<SummaryRow>)[] = [
   {
-    headerName: 'Region and day',
+    headerName: 'Where and when',
     children: [
       { field: 'region', headerName: 'Region', pinned: 'left', width: 150, sortable: true, filter: 'agTextColumnFilter' },
       { field: 'day', headerName: 'Day (UTC)', pinned: 'left', width: 104, cellClass: 'num', sortable: true },
-      { ...numberColumn, field: 'scenarios', headerName: 'Scenarios', width: 90 },
     ],
   },
+  { headerName: 'Spread', children: [{ ...numberColumn, field: 'scenarios', headerName: 'Scenarios', width: 90 }] },
   ...SUMMARY_QUANTITIES.map((q): ColGroupDef<SummaryRow> => {
     const { label, unit, digits } = QUANTITY_LABELS[q];
     const part = (key: 'p10' | 'p50' | 'p90' | 'changeP50', name: string): ColDef<SummaryRow> => ({
