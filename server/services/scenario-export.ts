@@ -180,8 +180,11 @@ export async function writeXlsx(db: Database, req: ExportRequest, prepared: Prep
   // fast deflate: the sheet is numbers and repeated ids; level 1 costs little size and much less time
   const wb = new ExcelJS.stream.xlsx.WorkbookWriter({ stream: out, useStyles: true, useSharedStrings: false, zip: { zlib: { level: 1 } } });
   wb.creator = 'Liftwise';
+  // the summary's reads run while the rows are being written
+  const pending = scenarioSummary(db, req.filter);
+  pending.catch(() => {});
   await writeScenarioSheet(wb, db, req, prepared.scope);
-  const summary = await scenarioSummary(db, req.filter);
+  const summary = await pending;
   writeSummarySheet(wb, summary);
   await writeAboutSheet(wb, db, req, prepared, summary);
   await wb.commit();

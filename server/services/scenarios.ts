@@ -152,9 +152,15 @@ async function latestPublishedWeights(db: Database) {
   return { source: { kind: 'call' as const, callId: call.id, publishedAt: call.publishedAt!.toISOString() }, pct, named };
 }
 
+type PublishedWeights = Awaited<ReturnType<typeof latestPublishedWeights>>;
+
 /** Each scenario's weight as % of the scope (rule in the file comment). */
-export async function scenarioWeights(db: Database, rs: RunWithMembers[]): Promise<{ weightPct: Map<string, number>; weights: WeightSource }> {
-  const [members, call] = await Promise.all([membersOf(db, rs), latestPublishedWeights(db)]);
+export async function scenarioWeights(
+  db: Database,
+  rs: RunWithMembers[],
+  published?: PublishedWeights,
+): Promise<{ weightPct: Map<string, number>; weights: WeightSource }> {
+  const [members, call] = await Promise.all([membersOf(db, rs), published === undefined ? latestPublishedWeights(db) : Promise.resolve(published)]);
   const raw = new Map<string, number>();
   const namedInScope = rs.filter((r) => call?.named.has(r.id)).length;
   for (const r of rs) {
@@ -177,11 +183,13 @@ async function dataVersion(db: Database): Promise<number> {
 }
 
 export async function resolveScope(db: Database, f: ScenarioFilter): Promise<Scope> {
-  const [{ clusterMembers, rs }, version] = await Promise.all([
+  // independent look-ups in parallel: a page request waits for the slowest, not their sum
+  const [{ clusterMembers, rs }, version, published] = await Promise.all([
     clusterFilter(db, f).then(async (clusterMembers) => ({ clusterMembers, rs: await scopeRuns(db, f, clusterMembers) })),
     dataVersion(db),
+    latestPublishedWeights(db),
   ]);
-  const { weightPct, weights } = await scenarioWeights(db, rs);
+  const { weightPct, weights } = await scenarioWeights(db, rs, published);
   return { runs: rs.map(({ id, model, cycle, isEnsemble }) => ({ id, model, cycle, isEnsemble })), weightPct, weights, clusterMembers, dataVersion: version };
 }
 
