@@ -18,7 +18,7 @@
  *  - the grid shows weightPct, the weight as % of all scenarios in scope; percentiles normalise
  *    the weights of whatever rows the filter keeps, so only ratios matter.
  */
-import { and, asc, count, desc, eq, gte, ilike, inArray, isNotNull, lt, lte, max, ne, or, sql, type SQL } from 'drizzle-orm';
+import { and, asc, count, desc, eq, gte, ilike, inArray, isNotNull, lt, lte, ne, or, sql, type SQL } from 'drizzle-orm';
 import {
   SCENARIO_QUANTITIES,
   type Band,
@@ -176,21 +176,46 @@ export async function scenarioWeights(
   return { weightPct, weights: used ? call.source : { kind: 'equal', callId: null, publishedAt: null } };
 }
 
-/** The newest signal row's id: any new row changes it, so cached orderings keyed on it go stale at once. */
-async function dataVersion(db: Database): Promise<number> {
-  const [row] = await db.select({ v: max(signalRows.id) }).from(signalRows);
-  return row?.v ?? 0;
+/**
+ * What a scope depends on, read in one round trip: the newest signal row, the newest published
+ * call and the latest change to any run. A scope is reused while this stays the same.
+ */
+async function dataVersion(db: Database): Promise<{ signals: number; key: string }> {
+  const [row] = await db
+    .select({
+      signals: sql<number>`coalesce((select max(${signalRows.id}) from ${signalRows}), 0)`.mapWith(Number),
+      calls: sql<string>`(select max(${regimeCalls.publishedAt}) from ${regimeCalls} where ${regimeCalls.state} = 'published')::text`,
+      runs: sql<string>`(select max(${runs.updatedAt})::text || count(*)::text from ${runs})`,
+    })
+    .from(sql`(select 1) as one`);
+  return { signals: row.signals, key: `${row.signals}|${row.calls}|${row.runs}` };
 }
 
-export async function resolveScope(db: Database, f: ScenarioFilter): Promise<Scope> {
-  // independent look-ups in parallel: a page request waits for the slowest, not their sum
-  const [{ clusterMembers, rs }, version, published] = await Promise.all([
+const SCOPE_TTL_MS = 30_000;
+const scopeCache = new Map<string, { at: number; scope: Promise<Scope> }>();
+
+async function computeScope(db: Database, f: ScenarioFilter, signals: number): Promise<Scope> {
+  // independent look-ups in parallel: a request waits for the slowest, not their sum
+  const [{ clusterMembers, rs }, published] = await Promise.all([
     clusterFilter(db, f).then(async (clusterMembers) => ({ clusterMembers, rs: await scopeRuns(db, f, clusterMembers) })),
-    dataVersion(db),
     latestPublishedWeights(db),
   ]);
   const { weightPct, weights } = await scenarioWeights(db, rs, published);
-  return { runs: rs.map(({ id, model, cycle, isEnsemble }) => ({ id, model, cycle, isEnsemble })), weightPct, weights, clusterMembers, dataVersion: version };
+  return { runs: rs.map(({ id, model, cycle, isEnsemble }) => ({ id, model, cycle, isEnsemble })), weightPct, weights, clusterMembers, dataVersion: signals };
+}
+
+/** The scope of a filter, reused while no run, signal row or published call has changed. */
+export async function resolveScope(db: Database, f: ScenarioFilter): Promise<Scope> {
+  const version = await dataVersion(db);
+  const key = JSON.stringify([f.runs, f.model, f.cycle, f.clustering, f.clusters, version.key]);
+  const now = Date.now();
+  const hit = scopeCache.get(key);
+  if (hit && now - hit.at < SCOPE_TTL_MS) return hit.scope;
+  const scope = computeScope(db, f, version.signals);
+  scopeCache.set(key, { at: now, scope });
+  scope.catch(() => scopeCache.delete(key));
+  for (const [k, v] of scopeCache) if (scopeCache.size > 64 || now - v.at >= SCOPE_TTL_MS) scopeCache.delete(k);
+  return scope;
 }
 
 // ---------------------------------------------------------------------------------------------
