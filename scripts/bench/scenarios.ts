@@ -4,8 +4,9 @@
  * Seeds, into its own database (DATABASE_URL if set, else a database "liftwise_bench" on the test
  * cluster of scripts/db.mjs, dropped and re-created), 20 regions x 50 members x 50 days = 50,000
  * signal rows for the latest cycle of one ensemble model, and as many for its previous cycle (so
- * the summary has a change to compute). Starts the app on loopback, signs a trader in through the
- * local identity provider, then:
+ * the summary has a change to compute). Starts the app on loopback in a child process (so the
+ * load generator does not share the server's event loop), signs a trader in through the local
+ * identity provider, then:
  *  - paging: CLIENTS concurrent clients each ask for REQUESTS pages of 100 rows (random offsets,
  *    sorted by day, by precipitation descending, by region or by weight), and the script prints
  *    p50/p95/p99 of the response times (whole response read);
@@ -13,6 +14,7 @@
  *  - exports of all 50,000 rows, .xlsx and CSV, timed to the last byte.
  * Targets (issue 7): paging p95 <= 250 ms with 20 clients; export <= 5 s.
  */
+import { spawn, type ChildProcess } from 'node:child_process';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import fs from 'node:fs';
@@ -22,6 +24,7 @@ import pg from 'pg';
 import { createApp } from '../../server/app.ts';
 import { loadConfig } from '../../server/config.ts';
 import { createDb, type DbHandle } from '../../server/db/client.ts';
+import { fileURLToPath } from 'node:url';
 import { applyMigrations } from '../../server/db/migrate.ts';
 import { calibrationSets, regions, runs, signalRows } from '../../server/db/schema.ts';
 import type { JobQueue } from '../../server/jobs/queue.ts';
@@ -114,22 +117,65 @@ async function timed(jar: CookieJar, url: string): Promise<{ ms: number; bytes: 
   return { ms: performance.now() - started, bytes: body.byteLength, status: res.status };
 }
 
-async function main(): Promise<void> {
-  const url = await benchDatabaseUrl();
+/** The child: the app alone on a loopback port, no queue workers, no mail. */
+async function serve(url: string): Promise<void> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'liftwise-bench-'));
   const server = http.createServer();
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
   const baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
-  const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: url, LOG_LEVEL: 'silent', SERVE_CLIENT: 'false', DATA_DIR: dataDir, PUBLIC_URL: baseUrl, AUTH_RATE_LIMIT_PER_MINUTE: '10000' });
+  const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: url, LOG_LEVEL: 'silent', SERVE_CLIENT: 'false', DATA_DIR: dataDir, PUBLIC_URL: baseUrl, AUTH_RATE_LIMIT_PER_MINUTE: '100000' });
   const db = createDb(url, 20);
   const queue: JobQueue = { send: async () => null, boss: null as never, stop: async () => {} };
+  server.on('request', createApp({ config, db, logger: createLogger('silent'), queue }));
+  process.once('SIGTERM', () => {
+    server.closeAllConnections();
+    server.close();
+    void db.close().finally(() => {
+      fs.rmSync(dataDir, { recursive: true, force: true });
+      process.exit(0);
+    });
+  });
+  console.log(`listening ${baseUrl}`);
+}
+
+function startServer(url: string): Promise<{ child: ChildProcess; baseUrl: string }> {
+  const child = spawn(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), '--serve'], {
+    env: { ...process.env, DATABASE_URL: url },
+    stdio: ['ignore', 'pipe', 'inherit'],
+  });
+  return new Promise((resolve, reject) => {
+    let out = '';
+    child.stdout!.on('data', (chunk: Buffer) => {
+      out += chunk.toString();
+      const m = /listening (http:\/\/\S+)/.exec(out);
+      if (m) resolve({ child, baseUrl: m[1] });
+    });
+    child.once('exit', (code) => reject(new Error(`the app process exited (${code}) before listening`)));
+  });
+}
+
+async function main(): Promise<void> {
+  const url = await benchDatabaseUrl();
+  const db = createDb(url, 4);
+  let child: ChildProcess | null = null;
   try {
     await applyMigrations(db.db, db.pool);
     const seedStart = performance.now();
     await seed(db);
     console.log(`seeded ${2 * REGIONS * MEMBERS * DAYS} signal rows (2 cycles x ${REGIONS} regions x ${MEMBERS} members x ${DAYS} days) in ${((performance.now() - seedStart) / 1000).toFixed(1)} s`);
-    server.on('request', createApp({ config, db, logger: createLogger('silent'), queue }));
-    const jar = new CookieJar();
+    const started = await startServer(url);
+    child = started.child;
+    await drive(started.baseUrl);
+  } finally {
+    child?.kill('SIGTERM');
+    await db.close();
+  }
+}
+
+async function drive(baseUrl: string): Promise<void> {
+  const jar = new CookieJar();
+  {
+    // one signed-in trader; the 20 clients share the session as 20 tabs of a desk would
     const signedIn = await signInAs({ baseUrl } as never, jar, 'trader');
     if (signedIn.status >= 400) throw new Error(`sign-in failed: ${signedIn.status}`);
 
@@ -167,15 +213,17 @@ async function main(): Promise<void> {
       const r = await timed(jar, `${baseUrl}/api/scenarios/export.${ext}`);
       console.log(`export.${ext} of ${total} rows: ${(r.ms / 1000).toFixed(2)} s, ${(r.bytes / 1e6).toFixed(1)} MB, status ${r.status}  [target <= 5 s: ${r.ms <= 5000 ? 'met' : 'NOT met'}]`);
     }
-  } finally {
-    server.closeAllConnections();
-    server.close();
-    await db.close();
-    fs.rmSync(dataDir, { recursive: true, force: true });
   }
 }
 
-main().catch((err) => {
-  console.error(err);
-  process.exit(1);
-});
+if (process.argv.includes('--serve')) {
+  serve(process.env.DATABASE_URL ?? '').catch((err) => {
+    console.error(err);
+    process.exit(1);
+  });
+} else {
+  main().catch((err) => {
+    console.error(err);
+    process.exit(1);
+  });
+}
