@@ -1,12 +1,12 @@
 import { useEffect, useState, type FormEvent } from 'react';
-import type { FilterParam } from './filters.ts';
+import { normaliseCycle, type FilterParam } from './filters.ts';
 
 const FIELDS: Array<{ key: FilterParam; label: string; placeholder?: string; type?: string; width: string }> = [
   { key: 'regions', label: 'Regions', placeholder: 'ids, comma-separated', width: 'w-44' },
   { key: 'from', label: 'From (UTC)', type: 'date', width: 'w-36' },
   { key: 'to', label: 'To (UTC)', type: 'date', width: 'w-36' },
   { key: 'model', label: 'Model', placeholder: 'latest of each', width: 'w-28' },
-  { key: 'cycle', label: 'Cycle (UTC)', placeholder: '2026-12-01T00:00Z', width: 'w-44' },
+  { key: 'cycle', label: 'Cycle (UTC)', placeholder: '2026-12-01 00Z', width: 'w-44' },
   { key: 'members', label: 'Members', placeholder: 'e.g. 1,2,5', width: 'w-28' },
   { key: 'clustering', label: 'Clustering id', placeholder: 'optional', width: 'w-40' },
   { key: 'clusters', label: 'Clusters', placeholder: 'e.g. 0,2', width: 'w-20' },
@@ -37,7 +37,7 @@ export function FilterBar({ search, onChange }: { search: URLSearchParams; onCha
   const submit = (e: FormEvent) => {
     e.preventDefault();
     const next = { ...draft };
-    if (next.cycle && !/Z|[+-]\d\d:?\d\d$/.test(next.cycle)) next.cycle = `${next.cycle.length === 16 ? `${next.cycle}:00` : next.cycle}Z`;
+    if (next.cycle) next.cycle = normaliseCycle(next.cycle);
     onChange(next);
   };
   return (

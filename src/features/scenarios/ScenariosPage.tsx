@@ -29,6 +29,13 @@ function useDarkMode(): boolean {
   return dark;
 }
 
+/** The server's list of what is wrong with a filter, in one line. */
+function problemDetails(error: unknown): string {
+  const details = (error as { details?: unknown }).details;
+  if (!Array.isArray(details)) return '';
+  return ` (${(details as Array<{ path: string; message: string }>).map((d) => `${d.path}: ${d.message}`).join('; ')})`;
+}
+
 /** The weighted P10/P50/P90 of the whole filter, as three rows pinned above the grid. */
 function pinnedRows(summary: ScenarioSummary | undefined): Partial<ScenarioRow>[] {
   if (!summary) return [];
@@ -160,6 +167,12 @@ export function ScenariosPage() {
         }
       />
       <FilterBar key={filterBarKey(search)} search={search} onChange={updateSearch} />
+      {summary.isError ? (
+        <p role="alert" className="text-xs text-caution">
+          The scenarios could not be loaded: {summary.error.message}
+          {problemDetails(summary.error)}
+        </p>
+      ) : null}
       <div className="flex flex-wrap items-center justify-between gap-2">
         <SavedViews current={currentView} onApply={applyView} />
         <p className="text-xs text-ink-muted">

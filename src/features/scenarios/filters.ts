@@ -66,3 +66,12 @@ export function filterModelFromNumberFilters(nf: string | null): Record<string, 
   }
   return model;
 }
+
+/**
+ * A model cycle as the desk types it ("2026-12-01 00Z", "2026-12-01T06:00") to the ISO form the
+ * API takes; anything else is passed on for the server to refuse with its own message.
+ */
+export function normaliseCycle(text: string): string {
+  const m = /^(\d{4}-\d{2}-\d{2})[T ](\d{2})(?::(\d{2}))?(?::(\d{2}))?\s*Z?$/i.exec(text.trim());
+  return m ? `${m[1]}T${m[2]}:${m[3] ?? '00'}:${m[4] ?? '00'}Z` : text.trim();
+}

@@ -7,7 +7,7 @@ import { palette } from '@shared/design-tokens.ts';
 import type { SummaryRow } from '@shared/api/scenarios.ts';
 import { changeClassRules } from '../../../src/features/scenarios/columns.tsx';
 import { fanChartOption } from '../../../src/features/scenarios/FanChart.tsx';
-import { apiQuery, filterModelFromNumberFilters, numberFiltersFromModel } from '../../../src/features/scenarios/filters.ts';
+import { apiQuery, filterModelFromNumberFilters, normaliseCycle, numberFiltersFromModel } from '../../../src/features/scenarios/filters.ts';
 
 describe('grid filters and the API', () => {
   it('turns AG Grid number filters into nf and back', () => {
@@ -22,6 +22,13 @@ describe('grid filters and the API', () => {
       precipMm: { filterType: 'number', type: 'greaterThanOrEqual', filter: 5 },
       cloudPct: { filterType: 'number', type: 'inRange', filter: 20, filterTo: 60 },
     });
+  });
+
+  it('reads a cycle the way the desk writes it', () => {
+    expect(normaliseCycle('2026-12-01 00Z')).toBe('2026-12-01T00:00:00Z');
+    expect(normaliseCycle('2026-12-01T06:00')).toBe('2026-12-01T06:00:00Z');
+    expect(normaliseCycle('2026-12-01T12:00:00Z')).toBe('2026-12-01T12:00:00Z');
+    expect(normaliseCycle('yesterday')).toBe('yesterday');
   });
 
   it('drops the client-only parameters from the API query', () => {
