@@ -16,6 +16,7 @@ let f: Fixture;
 let trader: Client;
 let risk: Client;
 let met: Client;
+let clusteringId: string;
 
 async function page(client: Client, query: string): Promise<ScenarioPage> {
   const res = await client.fetch(`/api/scenarios?${query}`);
@@ -109,6 +110,7 @@ describe('scenario rows', () => {
         meanFields: [],
       })
       .returning();
+    clusteringId = clustering.id;
     const p = await page(trader, `regions=${f.regionH},${f.regionS}&clustering=${clustering.id}&clusters=1`);
     expect(p.total).toBe(4);
     expect(p.rows.every((r) => r.runId === f.runE1 && r.member === 3)).toBe(true);
@@ -189,6 +191,30 @@ describe('summary: weighted percentiles and change against the previous cycle', 
     // P50 = 4 + (0.1/0.6)*3 = 4.5
     const s = await summary(trader, `regions=${f.regionH}&from=${DAY1}&to=${DAY1}`);
     close(s.rows[0].stats.precipMm.p50, 4.5);
+  });
+
+  it('a call weighting clusters shares each cluster\'s weight equally among its members', async () => {
+    expect(clusteringId).toBeTruthy();
+    await t.db.db.insert(regimeCalls).values({
+      seriesId: randomUUID(),
+      version: 1,
+      state: 'published',
+      validFrom: DAY1,
+      validTo: DAY2,
+      regimes: [],
+      confidence: 'high',
+      // clusters of the E1 clustering: 0 = members 1 and 2, 1 = member 3
+      weights: { basis: 'cluster', clusteringId, weights: [{ key: '0', pct: 80 }, { key: '1', pct: 20 }] },
+      publishedAt: new Date(Date.now() + 1000),
+    });
+    const p = await page(trader, `runs=${f.runE1},${f.runD1}&regions=${f.regionH}&from=${DAY1}&to=${DAY1}&sort=member`);
+    expect(p.weights.kind).toBe('call');
+    const w = Object.fromEntries(p.rows.map((r) => [r.member, r.weightPct]));
+    // E1 carries 1 (0.4, 0.4, 0.2), D1 carries 1: of 2 in all
+    close(w[1], 20);
+    close(w[2], 20);
+    close(w[3], 10);
+    close(w[0], 50);
   });
 });
 
