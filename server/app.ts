@@ -23,6 +23,7 @@ import { healthRouter } from './routes/health.ts';
 import { runsRouter } from './routes/runs.ts';
 import { snapshotsRouter } from './routes/snapshots.ts';
 import { runViewRouter } from './routes/run-view.ts';
+import { scenariosRouter } from './routes/scenarios.ts';
 import { meRouter } from './routes/me.ts';
 import { regionsRouter } from './routes/regions.ts';
 import { calibrationRouter } from './routes/calibration.ts';
@@ -92,6 +93,7 @@ export function createApp(deps: AppDeps): express.Express {
   app.use('/api', runsRouter(deps));
   app.use('/api', snapshotsRouter(deps));
   app.use('/api', runViewRouter(deps));
+  app.use('/api', scenariosRouter(deps));
   if (!config.isProduction) app.use('/api', outboxRouter(deps));
   app.use('/api', meRouter(deps));
   app.use('/api', auditRouter(deps));
