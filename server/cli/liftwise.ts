@@ -9,6 +9,7 @@ const commands: Record<string, Command> = {
   inspect: { summary: 'describe a model-run file (GRIB2 / NetCDF), or dump one field', load: () => import('./commands/inspect.ts') },
   'verify-snapshot': { summary: 'check an exported sealed snapshot offline (hash, chain, signature)', load: () => import('./commands/verify-snapshot.ts') },
   diagnose: { summary: 'QG omega diagnosis of a run, step by step', load: () => import('./commands/diagnose.ts') },
+  upload: { summary: 'upload a model-run file to a Liftwise server with an API token', load: () => import('./commands/upload.ts') },
 };
 
 function usage(): string {
