@@ -23,10 +23,25 @@ export interface JobQueue {
   stop(): Promise<void>;
 }
 
-const RETRY = { retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds: 60 * 60 } as const;
+/**
+ * A job whose worker died (process killed, machine lost) stays "active" until it expires; the
+ * queue's maintenance then fails it by timeout and delivers it again (it counts as an attempt).
+ * JOB_EXPIRE_SECONDS: how long one job may run before it counts as lost (default 3600 s; it must
+ * exceed the longest member diagnosis). JOB_MAINTENANCE_SECONDS: how often expired jobs are looked
+ * for (default 120 s). The fault drills set both short.
+ */
+function secondsFromEnv(name: string, fallback: number): number {
+  const raw = process.env[name];
+  if (raw === undefined || raw === '') return fallback;
+  const value = Number(raw);
+  if (!Number.isInteger(value) || value < 1) throw new Error(`${name} must be a whole number of seconds (at least 1), got "${raw}"`);
+  return value;
+}
 
 export async function createQueue(databaseUrl: string, logger: Logger): Promise<JobQueue> {
-  const boss = new PgBoss({ connectionString: databaseUrl, schema: 'pgboss', max: 4, supervise: true, schedule: false });
+  const RETRY = { retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds: secondsFromEnv('JOB_EXPIRE_SECONDS', 60 * 60) } as const;
+  const maintenanceIntervalSeconds = secondsFromEnv('JOB_MAINTENANCE_SECONDS', 120);
+  const boss = new PgBoss({ connectionString: databaseUrl, schema: 'pgboss', max: 4, supervise: true, schedule: false, maintenanceIntervalSeconds });
   boss.on('error', (err) => logger.error({ err }, 'queue error'));
   await boss.start();
   for (const name of Object.values(QUEUE_NAMES)) await boss.createQueue(name, { name, ...RETRY });
