@@ -1,4 +1,5 @@
 import { EmptyState, PageHeader } from '@/components/Page.tsx';
+import { ApiTokensSection } from './ApiTokensSection.tsx';
 import { RoleMappingSection } from './RoleMappingSection.tsx';
 
 export function AdminPage() {
@@ -10,6 +11,7 @@ export function AdminPage() {
           Hydro catchments and solar zones (GeoJSON with plant parameters) will be listed here with a map preview.
         </EmptyState>
         <RoleMappingSection />
+        <ApiTokensSection />
       </div>
     </div>
   );
