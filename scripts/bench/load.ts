@@ -12,6 +12,9 @@
  *    BENCH_SECONDS (default 60), bounded by BENCH_MAX_REQUESTS (default 500000) in all.
  * 4. Prints p50 / p95 / p99 latency (ms) and errors per route and overall, and the throughput.
  *
+ * BENCH_SERVER_NODE_ARGS adds Node options to the server process only, e.g.
+ * "--cpu-prof --cpu-prof-dir=DIR" to see where its time goes.
+ *
  * Target (issue 10): no errors and p95 at most 300 ms. Exit code 0 when met, 1 when not, 2 when
  * the bench could not run. The clients share one process and the machine's cores with the
  * server, so the figures include client-side time.
@@ -63,7 +66,8 @@ async function benchDatabase(): Promise<string> {
 async function startServer(databaseUrl: string, dataDir: string): Promise<{ child: ChildProcess; baseUrl: string }> {
   const port = await freePort();
   const baseUrl = `http://127.0.0.1:${port}`;
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
+  const extra = (process.env.BENCH_SERVER_NODE_ARGS ?? '').split(/\s+/).filter(Boolean);
+  const child = spawn(process.execPath, [...extra, '--import', 'tsx', 'server/index.ts'], {
     cwd: root,
     env: {
       ...process.env,
@@ -218,14 +222,18 @@ async function main(): Promise<number> {
     const sessions: Session[] = [];
     for (let i = 0; i < CLIENTS; i++) sessions.push(await signIn(baseUrl, ROLES[i % ROLES.length]));
     const routes = ['/api/runs', `/api/runs/${runId}`, '/api/health', '/api/me'];
-    const probe = await send(sessions[1].jar, `${baseUrl}/api/scenarios`);
+    const probe = await send(met.jar, `${baseUrl}/api/scenarios`);
     if (probe.status === 200) routes.push('/api/scenarios');
     else log(`GET /api/scenarios answered ${probe.status}: left out`);
     log(`${CLIENTS} clients for ${SECONDS} s (at most ${MAX_REQUESTS} requests) on ${routes.length} routes ...`);
     const { stats, elapsedS } = await hammer(baseUrl, sessions, routes);
     return report(stats, elapsedS) ? 0 : 1;
   } finally {
-    server?.kill('SIGTERM');
+    if (server) {
+      const exited = new Promise((r) => server!.once('exit', r));
+      server.kill('SIGTERM');
+      await exited;
+    }
     fs.rmSync(dataDir, { recursive: true, force: true });
   }
 }
