@@ -29,7 +29,8 @@ export function requestUser(req: Request): SignedInUser | null {
 
 function bearerToken(req: Request): string | null {
   const header = req.get('authorization');
-  if (!header) return null;
+  // Other schemes (e.g. Basic from a proxy in front) are not ours to judge.
+  if (!header || !/^Bearer(\s|$)/i.test(header)) return null;
   const match = /^Bearer\s+(\S+)\s*$/i.exec(header);
   return match ? match[1] : '';
 }

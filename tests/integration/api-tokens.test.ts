@@ -113,6 +113,10 @@ describe('API tokens: issued by an admin, used by machines with Authorization: B
     const b = await bearer(t, 'not-a-token', '/api/runs');
     expect(b.status).toBe(401);
     expect((await b.json()).error.message).toMatch(/not in the expected form/);
+    // Another scheme (say Basic, from a proxy in front) is left alone: the request is simply signed out.
+    const basic = await fetch(`${t.baseUrl}/api/runs`, { headers: { Authorization: 'Basic dXNlcjpwYXNz' } });
+    expect(basic.status).toBe(401);
+    expect((await basic.json()).error.code).toBe('unauthorized');
     const refused = await auditRows(t, 'auth.token_refused');
     expect(refused.map((r) => r.detail.reason)).toEqual(expect.arrayContaining(['unknown', 'malformed']));
   });
