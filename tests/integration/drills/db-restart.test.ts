@@ -75,8 +75,9 @@ describe('fault drill: PostgreSQL restarted during requests', () => {
             json = false;
           }
           outcomes.push({ status: res.status, json, code });
-        } catch {
-          outcomes.push({ status: 'network', json: false });
+        } catch (err) {
+          const cause = (err as Error & { cause?: { code?: string; message?: string } }).cause;
+          outcomes.push({ status: 'network', json: false, code: cause?.code ?? cause?.message ?? (err as Error).message });
         }
       }
     };
