@@ -106,3 +106,42 @@ export function run(cmd, args, opts = {}) {
     child.on('error', () => resolve(127));
   });
 }
+
+/**
+ * The demo feed of `npm start`, in the background once the server is starting: generates the
+ * demo runs when .data/demo/manifest.json is missing, makes sure the demo upload token exists,
+ * then uploads the runs through the HTTP API (scripts/demo/feed.ts). Skipped in production and
+ * with DEMO_FEED=false. Returns a stop function for shutdown.
+ */
+export function startDemoFeed(env) {
+  const off = ['false', '0', 'no'].includes(String(env.DEMO_FEED ?? '').toLowerCase());
+  if (env.NODE_ENV === 'production' || off) {
+    log(`demo feed skipped (${off ? 'DEMO_FEED=false' : 'production'})`);
+    return () => {};
+  }
+  const tsx = path.join(root, 'node_modules', 'tsx', 'dist', 'cli.mjs');
+  const host = !env.HOST || env.HOST === '0.0.0.0' || env.HOST === '::' ? '127.0.0.1' : env.HOST;
+  const url = `http://${host.includes(':') ? `[${host}]` : host}:${env.PORT ?? 8080}`;
+  let current = null;
+  let stopped = false;
+  const step = (args) =>
+    new Promise((resolve) => {
+      if (stopped) return resolve(1);
+      current = spawn(process.execPath, [tsx, ...args], { cwd: root, stdio: 'inherit', env });
+      current.on('exit', (code, signal) => resolve(code ?? (signal ? 1 : 0)));
+      current.on('error', () => resolve(127));
+    });
+  (async () => {
+    if (!fs.existsSync(path.join(root, '.data', 'demo', 'manifest.json'))) {
+      log('demo feed: generating the demo runs into .data/demo (about half a minute, in the background) ...');
+      if ((await step(['scripts/demo/generate.ts'])) !== 0) return log('demo feed: generating the demo runs failed (see above); run `npm run demo:generate` to retry');
+    }
+    if ((await step(['scripts/demo/feed.ts', 'ensure-token'])) !== 0) return log('demo feed: could not make the demo upload token (see above)');
+    log(`demo feed: uploading the demo runs to ${url} through the API ...`);
+    if ((await step(['scripts/demo/feed.ts', 'upload', '--url', url])) !== 0) log('demo feed: some uploads failed (see above); a restart tries again');
+  })();
+  return () => {
+    stopped = true;
+    current?.kill('SIGTERM');
+  };
+}

@@ -3,13 +3,15 @@
  * `npm start`: from a fresh clone to a served desk tool.
  *   installs npm dependencies when missing or stale, starts the local PostgreSQL (installing
  *   Debian's server when missing and we are root), migrates, seeds the demo, builds the client,
- *   and serves everything on http://127.0.0.1:$PORT (default 8080).
+ *   and serves everything on http://127.0.0.1:$PORT (default 8080). In the background, once the
+ *   server starts, the demo runs are generated (when missing) and uploaded through the API with
+ *   the demo upload token (scripts/demo/feed.ts; DEMO_FEED=false skips it).
  * `npm run dev`: the same, but Vite with hot reload on :5173 and the API restarted on change.
  * A DATABASE_URL in the environment skips the local PostgreSQL.
  */
 import { spawn } from 'node:child_process';
 import path from 'node:path';
-import { ensureClientBuilt, ensureDependencies, log, root, run, StepError } from './lib.mjs';
+import { ensureClientBuilt, ensureDependencies, log, root, run, startDemoFeed, StepError } from './lib.mjs';
 
 const dev = process.argv.includes('--dev');
 
@@ -34,10 +36,15 @@ async function main() {
     ensureClientBuilt();
     children.push(spawn(process.execPath, [tsx, 'server/index.ts'], { cwd: root, stdio: 'inherit', env: { ...env, SERVE_CLIENT: 'true' } }));
   }
-  const stopAll = (signal) => children.forEach((c) => c.kill(signal));
+  const stopFeed = startDemoFeed(env);
+  const stopAll = (signal) => {
+    stopFeed();
+    children.forEach((c) => c.kill(signal));
+  };
   process.on('SIGINT', () => stopAll('SIGINT'));
   process.on('SIGTERM', () => stopAll('SIGTERM'));
   const codes = await Promise.all(children.map((c) => new Promise((resolve) => c.on('exit', (code) => resolve(code ?? 0)))));
+  stopFeed();
   process.exit(Math.max(...codes));
 }
 

@@ -28,6 +28,7 @@ const REFERENCE_TOOLS = [
     present: pythonHas('numpy, scipy.sparse.linalg, eccodes'),
   },
   { label: 'Chromium for the browser tests', packages: ['chromium'], present: () => fs.existsSync('/usr/bin/chromium') },
+  { label: 'LibreOffice Calc (reads the exported workbooks)', packages: ['libreoffice-calc'], present: () => hasCommand('soffice') },
 ];
 
 async function resetTestDatabase(url) {

@@ -6,6 +6,7 @@ import { ZodError } from 'zod';
 import type { Config } from './config.ts';
 import type { DbHandle } from './db/client.ts';
 import { authorizeApi } from './auth/authorize.ts';
+import { apiTokenAuth, csrfUnlessBearer } from './auth/api-token.ts';
 import { csrfProtection } from './auth/csrf.ts';
 import { createAuth } from './auth/index.ts';
 import { unlistedApiRoutes } from './auth/route-list.ts';
@@ -16,6 +17,7 @@ import type { Logger } from './logger.ts';
 import type { MailService } from './mail/index.ts';
 import { outboxRouter } from './routes/outbox.ts';
 import { adminRolesRouter } from './routes/admin-roles.ts';
+import { apiTokensRouter } from './routes/api-tokens.ts';
 import { appInfoRouter } from './routes/app-info.ts';
 import { auditRouter } from './routes/audit.ts';
 import { authRouter } from './routes/auth.ts';
@@ -86,7 +88,9 @@ export function createApp(deps: AppDeps): express.Express {
   // The assertion consumer service is exempt from CSRF tokens: the IdP's signature protects it.
   app.use('/auth', auth.rateLimit, csrfProtection(['/saml/acs']), authRouter(deps, auth));
   // Every /api request passes the permission table (deny by default), then the CSRF check.
-  app.use('/api', authorizeApi(), csrfProtection([]));
+  // A bearer API token authenticates machines; such requests without a session cookie skip CSRF.
+  app.use('/api', ...apiTokenAuth(deps));
+  app.use('/api', authorizeApi(), csrfUnlessBearer(csrfProtection([]), deps));
 
   app.use('/api', healthRouter(deps));
   app.use('/api', appInfoRouter(deps));
@@ -101,6 +105,7 @@ export function createApp(deps: AppDeps): express.Express {
   app.use('/api', regionsRouter(deps));
   app.use('/api', calibrationRouter(deps));
   app.use('/api', signalsRouter(deps));
+  app.use('/api', apiTokensRouter(deps));
 
   app.use('/api', (_req, _res, next) => next(new AppError(404, 'not_found', 'No such API route.')));
   if (config.serveClient) serveClient(app, config.clientDir);

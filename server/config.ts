@@ -33,6 +33,8 @@ const schema = z
     TRUST_PROXY: flag.default(false),
     CODE_VERSION: z.string().min(1).optional(),
     IN_PROCESS_WORKER: flag.default(true),
+    JOB_EXPIRE_SECONDS: z.coerce.number().int().min(1).default(60 * 60),
+    JOB_MAINTENANCE_SECONDS: z.coerce.number().int().min(1).default(120),
     QUEUE_SCHEMA: z.string().regex(/^[a-z_][a-z0-9_]{0,40}$/, 'must be a lower-case SQL identifier').default('pgboss'),
     SNAPSHOT_AFTER_PUBLISH: flag.default(false),
     SMTP_URL: z.string().regex(/^smtps?:\/\//, 'must be an smtp:// or smtps:// URL').optional(),
@@ -86,7 +88,7 @@ const schema = z
       trustProxy: env.TRUST_PROXY,
       codeVersion: env.CODE_VERSION ?? readCodeVersion(),
       inProcessWorker: env.IN_PROCESS_WORKER,
-      queueSchema: env.QUEUE_SCHEMA,
+      queue: { schema: env.QUEUE_SCHEMA, expireSeconds: env.JOB_EXPIRE_SECONDS, maintenanceSeconds: env.JOB_MAINTENANCE_SECONDS },
       /** seal a snapshot automatically after each published regime call */
       snapshotAfterPublish: env.SNAPSHOT_AFTER_PUBLISH,
       /** null: no mail server configured; outside production the local mail catcher stands in */

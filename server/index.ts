@@ -21,7 +21,7 @@ async function main(): Promise<void> {
   } catch (err) {
     throw new Error(`cannot migrate the database at ${redact(config.databaseUrl)}: ${(err as Error).message}`);
   }
-  const queue = await createQueue(config.databaseUrl, logger, config.queueSchema);
+  const queue = await createQueue(config.databaseUrl, logger, config.queue);
   const workers = config.inProcessWorker ? await startAllWorkers({ db, config, queue, logger }) : null;
   const mail = await startMail(config, db, logger);
   const app = createApp({ config, db, logger, queue, mail });

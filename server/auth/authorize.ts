@@ -6,13 +6,14 @@
 import type { RequestHandler } from 'express';
 import { decide, findPermission, PERMISSIONS, type Permission } from '@shared/permissions.ts';
 import { AppError, forbidden, unauthorized } from '../errors.ts';
+import { requestUser } from './api-token.ts';
 
 export function authorizeApi(table: readonly Permission[] = PERMISSIONS): RequestHandler {
   return (req, _res, next) => {
     // Mounted at /api: req.path is relative to it.
     const entry = findPermission(req.method, `/api${req.path === '/' ? '' : req.path}`, table);
     if (!entry) return next(new AppError(404, 'not_found', 'No such API route.'));
-    const user = req.session?.user ?? null;
+    const user = requestUser(req);
     const decision = decide(entry.access, user ? user.roles : null);
     if (decision === 'unauthenticated') return next(unauthorized());
     if (decision === 'forbidden') return next(forbidden());

@@ -61,7 +61,6 @@ export function sessionMiddleware(auth: AuthConfig, pool: pg.Pool, logger: Logge
     resave: false,
     saveUninitialized: false,
     rolling: true,
-    unset: 'destroy',
     cookie: { httpOnly: true, sameSite: 'lax', secure: auth.secureCookies, path: '/', maxAge: auth.sessionIdleMs },
   });
 }

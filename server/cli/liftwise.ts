@@ -10,6 +10,7 @@ const commands: Record<string, Command> = {
   'verify-snapshot': { summary: 'check an exported sealed snapshot offline (hash, chain, signature)', load: () => import('./commands/verify-snapshot.ts') },
   diagnose: { summary: 'QG omega diagnosis of a run, step by step', load: () => import('./commands/diagnose.ts') },
   signals: { summary: 'regional daily signals of a run (precipitation, cloud, solar, inflow), offline', load: () => import('./commands/signals.ts') },
+  upload: { summary: 'upload a model-run file to a Liftwise server with an API token', load: () => import('./commands/upload.ts') },
 };
 
 function usage(): string {

@@ -23,14 +23,31 @@ export interface JobQueue {
   stop(): Promise<void>;
 }
 
-const RETRY = { retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds: 60 * 60 } as const;
+export interface QueueOptions {
+  /** PostgreSQL schema of the queue's tables: one per deployment (QUEUE_SCHEMA); tests give each app its own */
+  schema: string;
+  /**
+   * A job whose worker died (process killed, machine lost) stays "active" until it expires; the
+   * queue's maintenance then fails it by timeout and delivers it again (it counts as an attempt).
+   * JOB_EXPIRE_SECONDS must exceed the longest member diagnosis; JOB_MAINTENANCE_SECONDS is how
+   * often expired jobs are looked for. The fault drills set both short.
+   */
+  expireSeconds: number;
+  maintenanceSeconds: number;
+}
 
-/**
- * `schema` keeps the queue's tables apart: every process of one deployment uses the same one
- * (QUEUE_SCHEMA); tests give each app its own, so that no app takes another's jobs.
- */
-export async function createQueue(databaseUrl: string, logger: Logger, schema = 'pgboss'): Promise<JobQueue> {
-  const boss = new PgBoss({ connectionString: databaseUrl, schema, max: 4, supervise: true, schedule: false });
+export const DEFAULT_QUEUE_OPTIONS: QueueOptions = { schema: 'pgboss', expireSeconds: 60 * 60, maintenanceSeconds: 120 };
+
+export async function createQueue(databaseUrl: string, logger: Logger, options: QueueOptions = DEFAULT_QUEUE_OPTIONS): Promise<JobQueue> {
+  const RETRY = { retryLimit: 3, retryDelay: 5, retryBackoff: true, expireInSeconds: options.expireSeconds } as const;
+  const boss = new PgBoss({
+    connectionString: databaseUrl,
+    schema: options.schema,
+    max: 4,
+    supervise: true,
+    schedule: false,
+    maintenanceIntervalSeconds: options.maintenanceSeconds,
+  });
   boss.on('error', (err) => logger.error({ err }, 'queue error'));
   await boss.start();
   for (const name of Object.values(QUEUE_NAMES)) await boss.createQueue(name, { name, ...RETRY });

@@ -14,7 +14,7 @@ async function main(): Promise<void> {
   const logger = createLogger(config.logLevel);
   const db = createDb(config.databaseUrl, 5);
   await applyMigrations(db.db, db.pool);
-  const queue = await createQueue(config.databaseUrl, logger, config.queueSchema);
+  const queue = await createQueue(config.databaseUrl, logger, config.queue);
   const workers = await startAllWorkers({ db, config, queue, logger });
   console.log('Liftwise worker is waiting for jobs');
   const stop = () => {

@@ -64,7 +64,7 @@ export async function startTestApp(env: Record<string, string> = {}, options: { 
   const logger = createLogger('silent');
   const db = createDb(config.databaseUrl, 5);
   await applyMigrations(db.db, db.pool);
-  const queue = await createQueue(config.databaseUrl, logger, config.queueSchema);
+  const queue = await createQueue(config.databaseUrl, logger, config.queue);
   const workers = options.workers !== false ? await startAllWorkers({ db, config, queue, logger }, { threads: 1 }) : null;
   server.on('request', createApp({ config, db, logger, queue }));
   return {

@@ -1,6 +1,7 @@
 import { PageHeader } from '@/components/Page.tsx';
 import { useCan } from '@/lib/session.ts';
 import { CalibrationSection } from './CalibrationSection.tsx';
+import { ApiTokensSection } from './ApiTokensSection.tsx';
 import { RegionsSection } from './RegionsSection.tsx';
 import { RoleMappingSection } from './RoleMappingSection.tsx';
 
@@ -14,6 +15,7 @@ export function AdminPage() {
         {isAdmin ? <RegionsSection /> : null}
         <CalibrationSection />
         {isAdmin ? <RoleMappingSection /> : null}
+        {isAdmin ? <ApiTokensSection /> : null}
       </div>
     </div>
   );

@@ -1,9 +1,11 @@
 /** The admin feature's HTTP layer: role mapping, regions, calibration sets. */
 import { queryOptions } from '@tanstack/react-query';
+import { z } from 'zod';
 import { roleMappingsSchema, type RoleMapping } from '@shared/api/auth.ts';
 import type { CalibrationParameters } from '@shared/calibration.ts';
 import type { RegionGeometry, RegionIssue, RegionProperties } from '@shared/regions.ts';
 import { ApiError, apiFetch } from '@/lib/api.ts';
+import { roleSchema, type Role } from '@shared/roles.ts';
 
 export const adminKeys = {
   all: ['admin'] as const,
@@ -86,4 +88,33 @@ export interface NewCalibrationSetInput {
 
 export async function createCalibrationSet(input: NewCalibrationSetInput): Promise<CalibrationSetRow> {
   return (await apiFetch<{ set: CalibrationSetRow }>('/api/calibration-sets', { method: 'POST', body: JSON.stringify(input) })).set;
+}
+
+// ---- API tokens (machine access: README.md, "Machine access") ----
+
+const apiTokenSchema = z.object({
+  id: z.string(),
+  name: z.string(),
+  roles: z.array(roleSchema),
+  createdBy: z.string().nullable(),
+  createdAt: z.string(),
+  lastUsedAt: z.string().nullable(),
+  revokedAt: z.string().nullable(),
+});
+export type ApiToken = z.infer<typeof apiTokenSchema>;
+
+export const apiTokensQuery = queryOptions({
+  queryKey: [...adminKeys.all, 'api-tokens'] as const,
+  queryFn: async () => z.object({ tokens: z.array(apiTokenSchema) }).parse(await apiFetch('/api/admin/api-tokens')).tokens,
+});
+
+/** Issues a token; the answer carries its plaintext, shown once. */
+export async function issueApiToken(input: { name: string; roles: Role[] }): Promise<{ token: string; apiToken: ApiToken }> {
+  const body = await apiFetch('/api/admin/api-tokens', { method: 'POST', body: JSON.stringify(input) });
+  return z.object({ token: z.string(), apiToken: apiTokenSchema }).parse(body);
+}
+
+export async function revokeApiToken(id: string): Promise<ApiToken> {
+  const body = await apiFetch(`/api/admin/api-tokens/${encodeURIComponent(id)}`, { method: 'DELETE' });
+  return z.object({ apiToken: apiTokenSchema }).parse(body).apiToken;
 }
