@@ -22,6 +22,10 @@ import { authRouter } from './routes/auth.ts';
 import { healthRouter } from './routes/health.ts';
 import { runsRouter } from './routes/runs.ts';
 import { meRouter } from './routes/me.ts';
+import { clustersRouter } from './routes/clusters.ts';
+import { regimeCallsRouter } from './routes/regime-calls.ts';
+import { regimeNamesRouter } from './routes/regime-names.ts';
+import { subscriptionsRouter } from './routes/subscriptions.ts';
 
 export interface AppDeps {
   config: Config;
@@ -86,6 +90,10 @@ export function createApp(deps: AppDeps): express.Express {
   app.use('/api', meRouter(deps));
   app.use('/api', auditRouter(deps));
   app.use('/api', adminRolesRouter(deps));
+  app.use('/api', clustersRouter(deps));
+  app.use('/api', regimeNamesRouter(deps));
+  app.use('/api', regimeCallsRouter(deps));
+  app.use('/api', subscriptionsRouter(deps));
 
   app.use('/api', (_req, _res, next) => next(new AppError(404, 'not_found', 'No such API route.')));
   if (config.serveClient) serveClient(app, config.clientDir);
