@@ -1,5 +1,7 @@
 import { EmptyState, PageHeader } from '@/components/Page.tsx';
+import { RegimeNamesSection } from './RegimeNamesSection.tsx';
 import { RoleMappingSection } from './RoleMappingSection.tsx';
+import { SubscriptionsSection } from './SubscriptionsSection.tsx';
 
 export function AdminPage() {
   return (
@@ -10,6 +12,8 @@ export function AdminPage() {
           Hydro catchments and solar zones (GeoJSON with plant parameters) will be listed here with a map preview.
         </EmptyState>
         <RoleMappingSection />
+        <SubscriptionsSection />
+        <RegimeNamesSection />
       </div>
     </div>
   );
