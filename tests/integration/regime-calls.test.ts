@@ -1,3 +1,4 @@
+import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
@@ -5,7 +6,7 @@ import path from 'node:path';
 import { and, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CAUTIONS } from '@shared/cautions.ts';
-import { auditEvents, outboxMails, regimeCalls, subscriptions } from '../../server/db/schema.ts';
+import { auditEvents, calibrationSets, outboxMails, regimeCalls, regions, runs, signalRows, subscriptions } from '../../server/db/schema.ts';
 import { startMailCatcher, type CaughtMail, type MailCatcher } from '../../server/dev/mail-catcher.ts';
 import { signIn, startTestApp, type Client, type TestApp } from './support.ts';
 
@@ -210,6 +211,52 @@ describe('regime calls: drafts, publish with e-mail through a real SMTP server, 
     expect(detail.narrativeHtml).toContain('&lt;script&gt;');
     const preview = await (await met.fetch(`/api/regime-calls/${call.id}/preview`)).json();
     expect(preview.html).not.toMatch(/<script|<img/i);
+  });
+
+  it('mails the subscribers of the linked runs\' regions, with the weighted P50 per region over the valid period', async () => {
+    const region = `fjord-${tag}`;
+    const near = `fjord-desk-${tag}@nordvale.example`;
+    const far = `plains-desk-${tag}@nordvale.example`;
+    const [cal] = await t.db.db.insert(calibrationSets).values({ name: `calls-test-${tag}`, params: {} }).returning();
+    const [run] = await t.db.db
+      .insert(runs)
+      .values({ checksum: randomBytes(32).toString('hex'), sizeBytes: 1, fileName: 'calls-test.nc', state: 'ready', isEnsemble: true, members: [0, 1, 2] })
+      .returning();
+    await t.db.db.insert(regions).values({ id: region, name: `Fjord ${tag}`, kind: 'hydro', properties: {}, geometry: {}, areaKm2: 100 });
+    // Per-member daily precipitation 10, 20 and 40 mm on each of the three valid days: totals 30, 60 and 120 mm.
+    const days = ['2026-12-03', '2026-12-04', '2026-12-05'];
+    await t.db.db.insert(signalRows).values(
+      [0, 1, 2].flatMap((member) =>
+        days.map((day) => ({ runId: run.id, member, regionId: region, day, precipMm: [10, 20, 40][member], inflowGwh: 1, calibrationVersion: cal.version, codeVersion: 'test', inputChecksum: 'test' })),
+      ),
+    );
+    await t.db.db.delete(subscriptions).where(inArray(subscriptions.email, [near, far]));
+    await t.db.db.insert(subscriptions).values([
+      { email: near, name: 'Fjord desk', regionIds: [region] },
+      { email: far, name: 'Plains desk', regionIds: [`plains-${tag}`] },
+    ]);
+    try {
+      const call = await draft({
+        linkedRunIds: [run.id],
+        weights: { basis: 'member', weights: [{ key: `${run.id}:0`, pct: 10 }, { key: `${run.id}:1`, pct: 10 }, { key: `${run.id}:2`, pct: 80 }] },
+      });
+      expect((await publish(met, call.id)).status).toBe(200);
+      const queued = await mailsFor(call.id);
+      const to = queued.flatMap((m) => m.recipients);
+      expect(to).toContain(near);
+      expect(to).toContain(subscriber);
+      expect(to).not.toContain(far);
+      // Weighted P50 by the rule of server/science/statistics.ts (weights 0.1, 0.1, 0.8 on 30, 60,
+      // 120 mm: positions 0, 0.182, 1, so P50 = 60 + (0.5 - 0.182) / 0.818 * 60 = 83.3 mm, by hand);
+      // equal weights would give the plain median, 60 mm.
+      expect(queued[0].textBody).toContain(`Fjord ${tag} (3 d): precipitation 83.3 mm, inflow 3.00 GWh, solar –`);
+      expect(queued[0].htmlBody).toContain(`Fjord ${tag}`);
+    } finally {
+      await t.db.db.delete(subscriptions).where(inArray(subscriptions.email, [near, far]));
+      await t.db.db.delete(runs).where(eq(runs.id, run.id));
+      await t.db.db.delete(regions).where(eq(regions.id, region));
+      await t.db.db.delete(calibrationSets).where(eq(calibrationSets.version, cal.version));
+    }
   });
 
   it('with the mail server down the mail stays queued, and goes out when the server returns', async () => {
