@@ -60,7 +60,7 @@ export function RegimeNamesSection() {
           <input value={description} onChange={(e) => setDescription(e.target.value)} maxLength={500} className={input} />
         </label>
         <button type="submit" disabled={name.trim().length < 2 || add.isPending} className="rounded border border-line px-3 py-1 text-ink hover:bg-surface-sunken disabled:opacity-50">
-          Add
+          Add name
         </button>
       </form>
       {add.isError || toggle.isError ? (

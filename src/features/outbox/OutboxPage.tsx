@@ -1,6 +1,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { useState } from 'react';
 import { EmptyState, PageHeader } from '@/components/Page.tsx';
+import { ApiError } from '@/lib/api.ts';
 import { outboxQuery, type CaughtMail } from './api.ts';
 
 export function OutboxPage() {
@@ -8,18 +9,20 @@ export function OutboxPage() {
   const [openId, setOpenId] = useState<string | null>(null);
   const sorted = [...(mails.data ?? [])].sort((a, b) => b.receivedAt.localeCompare(a.receivedAt));
   const open = sorted.find((m) => m.id === openId) ?? null;
+  // 404: this server has no local catcher (a mail server is configured), so nothing is caught here.
+  const noCatcher = mails.error instanceof ApiError && mails.error.status === 404;
   return (
     <div className="flex flex-col gap-4">
       <PageHeader title="Outbox" subtitle="Development only: the mails the local mail catcher received." />
       {mails.isPending ? <p className="text-ink-muted">Loading…</p> : null}
-      {mails.isError ? (
+      {mails.isError && !noCatcher ? (
         <p role="alert" className="text-caution">
           {mails.error.message}
         </p>
       ) : null}
-      {mails.data && sorted.length === 0 ? (
+      {(mails.data && sorted.length === 0) || noCatcher ? (
         <EmptyState icon="outbox" title="No mail caught">
-          Regime-call e-mails sent while developing land here instead of in anyone's inbox.
+          {noCatcher ? 'No local mail catcher runs here: mail goes to the configured mail server.' : "Regime-call e-mails sent while developing land here instead of in anyone's inbox."}
         </EmptyState>
       ) : null}
       {sorted.length ? (

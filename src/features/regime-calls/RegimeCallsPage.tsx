@@ -65,7 +65,7 @@ export function RegimeCallsPage() {
           {list.isPending ? <p className="text-ink-muted">Loading…</p> : null}
           {list.isError ? <p role="alert" className="text-caution">{list.error.message}</p> : null}
           {list.data && heads.length === 0 ? (
-            <EmptyState icon="call" title="No regime calls yet">
+            <EmptyState icon="call" title="No regime calls published">
               {mayWrite ? 'Start one with New call.' : 'Published calls and their earlier versions will be listed here, newest first.'}
             </EmptyState>
           ) : null}
