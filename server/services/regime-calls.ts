@@ -19,6 +19,8 @@ import { renderCallMail, renderMarkdown, type CallMailContent, type RenderedMail
 import { weightedPercentile } from '../science/statistics.ts';
 import { recordAudit, type AuditEventInput, type DbExecutor } from './audit.ts';
 
+const MEMBER_KEY = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}:\d{1,4}$/i;
+
 type AuditMeta = Pick<AuditEventInput, 'actorId' | 'actorLabel' | 'requestId' | 'clientAddress'>;
 type CallRow = typeof regimeCalls.$inferSelect;
 type Weights = RegimeCall['weights'];
@@ -127,6 +129,17 @@ async function checkPublishable(tx: DbExecutor, row: CallRow) {
     const known = new Set((clustering.clusters as { id: number }[]).map((c) => String(c.id)));
     const unknown = call.weights.weights.filter((w) => !known.has(w.key)).map((w) => w.key);
     if (unknown.length) throw badRequest(`The weights name clusters the clustering does not have: ${unknown.join(', ')}.`);
+  }
+  if (call.weights.basis === 'member') {
+    const malformed = call.weights.weights.filter((w) => !MEMBER_KEY.test(w.key)).map((w) => w.key);
+    if (malformed.length) throw badRequest(`Member weights are keyed "<run id>:<member>"; these are not: ${malformed.join(', ')}.`);
+    const runIds = [...new Set(call.weights.weights.map((w) => w.key.split(':')[0]))];
+    const found = await tx.select({ id: runs.id, members: runs.members }).from(runs).where(inArray(runs.id, runIds));
+    const unknown = call.weights.weights.filter((w) => {
+      const [runId, member] = w.key.split(':');
+      return !found.some((r) => r.id === runId && (r.members ?? []).includes(Number(member)));
+    });
+    if (unknown.length) throw badRequest(`The weights name members that no stored run has: ${unknown.map((w) => w.key).join(', ')}.`);
   }
   if (call.linkedRunIds.length) {
     const found = await tx.select({ id: runs.id }).from(runs).where(inArray(runs.id, call.linkedRunIds));
@@ -260,9 +273,13 @@ async function resolveScenarioWeights(tx: DbExecutor, weights: Weights): Promise
 
 async function weightLabels(tx: DbExecutor, weights: Weights): Promise<{ label: string; pct: number }[]> {
   if (weights.basis === 'member') {
+    const ids = [...new Set(weights.weights.map((w) => w.key.split(':')[0]))].filter((id) => /^[0-9a-f-]{36}$/i.test(id));
+    const known = ids.length ? await tx.select({ id: runs.id, model: runs.model, cycle: runs.cycle }).from(runs).where(inArray(runs.id, ids)) : [];
     return weights.weights.map((w) => {
       const [runId, member] = w.key.split(':');
-      return { label: `run ${runId?.slice(0, 8)} member ${member ?? '?'}`, pct: w.pct };
+      const run = known.find((r) => r.id === runId);
+      const name = run ? `${run.model ?? 'run'} ${run.cycle ? run.cycle.toISOString().slice(0, 13).replace('T', ' ') + 'Z' : ''}`.trim() : `run ${runId?.slice(0, 8)}`;
+      return { label: `${name} member ${member ?? '?'}`, pct: w.pct };
     });
   }
   const [clustering] = weights.clusteringId ? await tx.select().from(runClusterings).where(eq(runClusterings.id, weights.clusteringId)) : [];

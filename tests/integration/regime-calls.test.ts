@@ -31,6 +31,8 @@ describe('regime calls: drafts, publish with e-mail through a real SMTP server, 
   let catcher: MailCatcher | null = null;
   let port: number;
   let westerly: number;
+  /** a stored ensemble run whose members the calls weight */
+  let runId: string;
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'liftwise-calls-'));
 
   async function mailsFor(callId: string) {
@@ -53,7 +55,7 @@ describe('regime calls: drafts, publish with e-mail through a real SMTP server, 
       validTo: '2026-12-05',
       regimes: [{ from: '2026-12-03', to: '2026-12-05', regimeId: westerly }],
       confidence: 'high',
-      weights: { basis: 'member', weights: [{ key: '00000000-0000-4000-8000-000000000001:0', pct: 60 }, { key: '00000000-0000-4000-8000-000000000001:1', pct: 40 }] },
+      weights: { basis: 'member', weights: [{ key: `${runId}:0`, pct: 60 }, { key: `${runId}:1`, pct: 40 }] },
       keyRisks: 'Faster front than the control.',
       narrative: `Wet westerly spell (${tag}).\n\n- **rain** on the western catchments\n- dry in the east`,
       ...overrides,
@@ -82,9 +84,15 @@ describe('regime calls: drafts, publish with e-mail through a real SMTP server, 
     }
     const names = (await (await met.fetch('/api/regime-names')).json()).names as { id: number; name: string }[];
     westerly = names.find((n) => n.name === 'Westerly flow')!.id;
+    const [run] = await t.db.db
+      .insert(runs)
+      .values({ checksum: randomBytes(32).toString('hex'), sizeBytes: 1, fileName: 'calls-test.nc', state: 'ready', isEnsemble: true, members: [0, 1, 2] })
+      .returning();
+    runId = run.id;
   });
   afterAll(async () => {
     await t.db.db.delete(subscriptions).where(inArray(subscriptions.email, [subscriber, otherRegion]));
+    await t.db.db.delete(runs).where(eq(runs.id, runId));
     await t.close();
     await catcher?.stop();
     fs.rmSync(dir, { recursive: true, force: true });
@@ -96,7 +104,7 @@ describe('regime calls: drafts, publish with e-mail through a real SMTP server, 
   });
 
   it('refuses to publish weights that do not sum to 100 %, naming the sum', async () => {
-    const call = await draft({ weights: { basis: 'member', weights: [{ key: 'r:0', pct: 50 }, { key: 'r:1', pct: 40 }] } });
+    const call = await draft({ weights: { basis: 'member', weights: [{ key: `${runId}:0`, pct: 50 }, { key: `${runId}:1`, pct: 40 }] } });
     const res = await publish(met, call.id);
     expect(res.status).toBe(400);
     const body = await res.json();
@@ -104,6 +112,10 @@ describe('regime calls: drafts, publish with e-mail through a real SMTP server, 
     const [row] = await t.db.db.select().from(regimeCalls).where(eq(regimeCalls.id, call.id));
     expect(row.state).toBe('draft');
     expect(await mailsFor(call.id)).toHaveLength(0);
+    const badKeys = await draft({ weights: { basis: 'member', weights: [{ key: 'r:0', pct: 50 }, { key: `${runId}:7`, pct: 50 }] } });
+    const res2 = await publish(met, badKeys.id);
+    expect(res2.status).toBe(400);
+    expect((await res2.json()).error.message).toContain('keyed "<run id>:<member>"; these are not: r:0');
   });
 
   it('a trader cannot create, save or publish a call (403)', async () => {
@@ -125,7 +137,7 @@ describe('regime calls: drafts, publish with e-mail through a real SMTP server, 
         validTo: '2026-12-05',
         regimes: [{ from: '2026-12-03', to: '2026-12-05', regimeId: westerly }],
         confidence: 'medium',
-        weights: { basis: 'member', weights: [{ key: 'r:0', pct: 70 }, { key: 'r:1', pct: 30 }] },
+        weights: { basis: 'member', weights: [{ key: `${runId}:0`, pct: 70 }, { key: `${runId}:1`, pct: 30 }] },
         keyRisks: 'Snow line uncertain.',
         narrative: `Wet westerly spell (${tag}).`,
       }),
