@@ -118,7 +118,7 @@ function ClusteringMaps({ clustering }: { clustering: ClusteringDetail }) {
   return (
     <div>
       <p className="mb-2 text-xs text-ink-muted">
-        +{clustering.step} h, k = {clustering.k}, silhouette <span className="num">{clustering.silhouette.toFixed(2)}</span> (−1 to 1; above about 0.25 the groups are distinct), leading EOFs explain{' '}
+        +{clustering.step} h, k = {clustering.k}, silhouette <span className="num">{clustering.silhouette.toFixed(2)}</span> (−1 to 1; Rousseeuw's rule of thumb: above 0.5 a reasonable grouping, below 0.25 no substantial one), leading EOFs explain{' '}
         <span className="num">{clustering.explainedVariance.map((v) => `${(v * 100).toFixed(0)} %`).join(', ')}</span> of the spread. Mean 500 hPa height per cluster, dam.
       </p>
       <div className="grid gap-2 md:grid-cols-2 xl:grid-cols-3">
