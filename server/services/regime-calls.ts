@@ -206,6 +206,17 @@ export async function publishCall(deps: CallsDeps, id: string, audit: AuditMeta)
 
 /** Starts a correction of the latest published version: a new draft, version + 1, carrying the content and the reason. */
 export async function startCorrection(db: DbHandle, id: string, reason: string, authorId: string, audit: AuditMeta): Promise<RegimeCall> {
+  try {
+    return await correction(db, id, reason, authorId, audit);
+  } catch (err) {
+    const e = err as { code?: string; cause?: { code?: string } };
+    // Two people started the same correction at once: the series/version index let one through.
+    if (e?.code === '23505' || e?.cause?.code === '23505') throw conflict('A correction of this call is already being drafted.');
+    throw err;
+  }
+}
+
+async function correction(db: DbHandle, id: string, reason: string, authorId: string, audit: AuditMeta): Promise<RegimeCall> {
   const row = await db.db.transaction(async (tx) => {
     const base = await loadCall(tx, id, true);
     if (base.state !== 'published') throw conflict('Only a published version is corrected; a draft is simply edited.');
