@@ -30,6 +30,10 @@ import { meRouter } from './routes/me.ts';
 import { regionsRouter } from './routes/regions.ts';
 import { calibrationRouter } from './routes/calibration.ts';
 import { signalsRouter } from './routes/signals.ts';
+import { clustersRouter } from './routes/clusters.ts';
+import { regimeCallsRouter } from './routes/regime-calls.ts';
+import { regimeNamesRouter } from './routes/regime-names.ts';
+import { subscriptionsRouter } from './routes/subscriptions.ts';
 
 export interface AppDeps {
   config: Config;
@@ -106,6 +110,10 @@ export function createApp(deps: AppDeps): express.Express {
   app.use('/api', calibrationRouter(deps));
   app.use('/api', signalsRouter(deps));
   app.use('/api', apiTokensRouter(deps));
+  app.use('/api', clustersRouter(deps));
+  app.use('/api', regimeNamesRouter(deps));
+  app.use('/api', regimeCallsRouter(deps));
+  app.use('/api', subscriptionsRouter(deps));
 
   app.use('/api', (_req, _res, next) => next(new AppError(404, 'not_found', 'No such API route.')));
   if (config.serveClient) serveClient(app, config.clientDir);

@@ -15,6 +15,7 @@ import { applyMigrations } from '../../server/db/migrate.ts';
 import { startAllWorkers } from '../../server/jobs/handlers.ts';
 import { createQueue, type JobQueue } from '../../server/jobs/queue.ts';
 import { createLogger } from '../../server/logger.ts';
+import { startMail, type MailService } from '../../server/mail/index.ts';
 import { CookieJar, send, signInAs } from './auth/harness.ts';
 
 export interface TestApp {
@@ -22,6 +23,8 @@ export interface TestApp {
   config: Config;
   db: DbHandle;
   queue: JobQueue;
+  /** the outbox sender (and, without SMTP_URL, the local catcher) when started with `mail` */
+  mail?: MailService;
   close(): Promise<void>;
 }
 
@@ -40,11 +43,16 @@ export const inertQueue: JobQueue = {
 
 /**
  * The app with a real queue and, unless `workers: false`, in-process workers (one pool thread);
- * DATA_DIR is a fresh temporary folder (uploads, keys, caught mail) removed at close.
+ * DATA_DIR is a fresh temporary folder (uploads, keys, caught mail) removed at close. With `mail`,
+ * the outbox sender runs too (against SMTP_URL when the env sets it, else a local catcher), polling
+ * every `mail.intervalMs` (default: an hour, so a test delivers only when something kicks it).
  */
 let appCount = 0;
 
-export async function startTestApp(env: Record<string, string> = {}, options: { workers?: boolean } = {}): Promise<TestApp> {
+export async function startTestApp(
+  env: Record<string, string> = {},
+  options: { workers?: boolean; mail?: { intervalMs?: number } } = {},
+): Promise<TestApp> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'liftwise-test-'));
   const server = http.createServer();
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
@@ -66,14 +74,17 @@ export async function startTestApp(env: Record<string, string> = {}, options: { 
   await applyMigrations(db.db, db.pool);
   const queue = await createQueue(config.databaseUrl, logger, config.queue);
   const workers = options.workers !== false ? await startAllWorkers({ db, config, queue, logger }, { threads: 1 }) : null;
-  server.on('request', createApp({ config, db, logger, queue }));
+  const mail = options.mail ? await startMail(config, db, logger, { intervalMs: options.mail.intervalMs ?? 3_600_000 }) : undefined;
+  server.on('request', createApp({ config, db, logger, queue, mail }));
   return {
     baseUrl,
     config,
     db,
     queue,
+    mail,
     close: async () => {
       server.closeAllConnections();
+      await mail?.stop();
       await new Promise<void>((resolve) => server.close(() => resolve()));
       await queue.stop();
       await workers?.stop();

@@ -54,6 +54,7 @@ beforeEach(() => {
         return new Response(JSON.stringify(me), { status: 200 });
       }
       if (url.includes('/api/snapshots?')) return new Response(JSON.stringify({ snapshots: [], total: 0 }), { status: 200 });
+      if (url.endsWith('/api/regime-calls')) return new Response(JSON.stringify({ calls: [] }), { status: 200 });
       if (url.endsWith('/api/regions')) return new Response(JSON.stringify({ regions: [] }), { status: 200 });
       if (url.endsWith('/api/calibration-sets')) return new Response(JSON.stringify({ sets: [] }), { status: 200 });
       if (url.endsWith('/api/admin/role-mappings')) return new Response(JSON.stringify({ mappings: [] }), { status: 200 });

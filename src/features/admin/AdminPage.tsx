@@ -3,7 +3,9 @@ import { useCan } from '@/lib/session.ts';
 import { CalibrationSection } from './CalibrationSection.tsx';
 import { ApiTokensSection } from './ApiTokensSection.tsx';
 import { RegionsSection } from './RegionsSection.tsx';
+import { RegimeNamesSection } from './RegimeNamesSection.tsx';
 import { RoleMappingSection } from './RoleMappingSection.tsx';
+import { SubscriptionsSection } from './SubscriptionsSection.tsx';
 
 /** Admins see every section; meteorologists reach this screen for the calibration sets. */
 export function AdminPage() {
@@ -16,6 +18,8 @@ export function AdminPage() {
         <CalibrationSection />
         {isAdmin ? <RoleMappingSection /> : null}
         {isAdmin ? <ApiTokensSection /> : null}
+        {isAdmin ? <SubscriptionsSection /> : null}
+        {isAdmin ? <RegimeNamesSection /> : null}
       </div>
     </div>
   );

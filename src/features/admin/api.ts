@@ -6,6 +6,16 @@ import type { CalibrationParameters } from '@shared/calibration.ts';
 import type { RegionGeometry, RegionIssue, RegionProperties } from '@shared/regions.ts';
 import { ApiError, apiFetch } from '@/lib/api.ts';
 import { roleSchema, type Role } from '@shared/roles.ts';
+import {
+  regimeNameListSchema,
+  regimeNameSchema,
+  subscriptionListSchema,
+  subscriptionSchema,
+  type RegimeName,
+  type RegimeNameInput,
+  type Subscription,
+  type SubscriptionInput,
+} from '@shared/api/regime-calls.ts';
 
 export const adminKeys = {
   all: ['admin'] as const,
@@ -117,4 +127,41 @@ export async function issueApiToken(input: { name: string; roles: Role[] }): Pro
 export async function revokeApiToken(id: string): Promise<ApiToken> {
   const body = await apiFetch(`/api/admin/api-tokens/${encodeURIComponent(id)}`, { method: 'DELETE' });
   return z.object({ apiToken: apiTokenSchema }).parse(body).apiToken;
+}
+
+// ---- regime names and mail subscriptions -------------------------------------------------------
+
+
+export const regimeNamesAdminQuery = queryOptions({
+  queryKey: ['regime-names'],
+  queryFn: async () => regimeNameListSchema.parse(await apiFetch('/api/regime-names')).names,
+});
+
+export async function createRegimeName(input: RegimeNameInput): Promise<RegimeName> {
+  const body = await apiFetch<{ name: unknown }>('/api/regime-names', { method: 'POST', body: JSON.stringify(input) });
+  return regimeNameSchema.parse(body.name);
+}
+
+export async function updateRegimeName(id: number, input: RegimeNameInput): Promise<RegimeName> {
+  const body = await apiFetch<{ name: unknown }>(`/api/regime-names/${id}`, { method: 'PUT', body: JSON.stringify(input) });
+  return regimeNameSchema.parse(body.name);
+}
+
+export const subscriptionsQuery = queryOptions({
+  queryKey: [...adminKeys.all, 'subscriptions'],
+  queryFn: async () => subscriptionListSchema.parse(await apiFetch('/api/subscriptions')).subscriptions,
+});
+
+export async function createSubscription(input: SubscriptionInput): Promise<Subscription> {
+  const body = await apiFetch<{ subscription: unknown }>('/api/subscriptions', { method: 'POST', body: JSON.stringify(input) });
+  return subscriptionSchema.parse(body.subscription);
+}
+
+export async function updateSubscription(id: string, input: SubscriptionInput): Promise<Subscription> {
+  const body = await apiFetch<{ subscription: unknown }>(`/api/subscriptions/${encodeURIComponent(id)}`, { method: 'PUT', body: JSON.stringify(input) });
+  return subscriptionSchema.parse(body.subscription);
+}
+
+export async function deleteSubscription(id: string): Promise<void> {
+  await apiFetch(`/api/subscriptions/${encodeURIComponent(id)}`, { method: 'DELETE' });
 }
