@@ -26,10 +26,11 @@ import { loadConfig } from '../../server/config.ts';
 import { createDb, type DbHandle } from '../../server/db/client.ts';
 import { fileURLToPath } from 'node:url';
 import { applyMigrations } from '../../server/db/migrate.ts';
-import { calibrationSets, regions, runs, signalRows } from '../../server/db/schema.ts';
+import { regions, runs, signalRows } from '../../server/db/schema.ts';
 import type { JobQueue } from '../../server/jobs/queue.ts';
 import { createLogger } from '../../server/logger.ts';
 import { CookieJar, send, signInAs } from '../../tests/integration/auth/harness.ts';
+import { ensureDefaultCalibrationSet, latestCalibrationSet } from '../../server/services/calibration.ts';
 
 const REGIONS = 20;
 const MEMBERS = 50;
@@ -58,7 +59,8 @@ function lcg(seed: number): () => number {
 }
 
 async function seed(db: DbHandle): Promise<void> {
-  const [cal] = await db.db.insert(calibrationSets).values({ name: 'bench', params: {} }).returning();
+  await ensureDefaultCalibrationSet(db.db);
+  const cal = await latestCalibrationSet(db.db);
   const square = { type: 'Polygon', coordinates: [[[10, 60], [11, 60], [11, 61], [10, 61], [10, 60]]] };
   await db.db.insert(regions).values(
     Array.from({ length: REGIONS }, (_, i) => ({

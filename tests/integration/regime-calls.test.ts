@@ -6,9 +6,10 @@ import path from 'node:path';
 import { and, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { CAUTIONS } from '@shared/cautions.ts';
-import { auditEvents, calibrationSets, outboxMails, regimeCalls, regions, runs, signalRows, subscriptions } from '../../server/db/schema.ts';
+import { auditEvents, outboxMails, regimeCalls, regions, runs, signalRows, subscriptions } from '../../server/db/schema.ts';
 import { startMailCatcher, type CaughtMail, type MailCatcher } from '../../server/dev/mail-catcher.ts';
 import { signIn, startTestApp, type Client, type TestApp } from './support.ts';
+import { ensureDefaultCalibrationSet, latestCalibrationSet } from '../../server/services/calibration.ts';
 
 async function freePort(): Promise<number> {
   return new Promise((resolve) => {
@@ -229,7 +230,9 @@ describe('regime calls: drafts, publish with e-mail through a real SMTP server, 
     const region = `fjord-${tag}`;
     const near = `fjord-desk-${tag}@nordvale.example`;
     const far = `plains-desk-${tag}@nordvale.example`;
-    const [cal] = await t.db.db.insert(calibrationSets).values({ name: `calls-test-${tag}`, params: {} }).returning();
+    // The real first calibration set (the defaults), shared with the other test files of this database.
+    await ensureDefaultCalibrationSet(t.db.db);
+    const cal = await latestCalibrationSet(t.db.db);
     const [run] = await t.db.db
       .insert(runs)
       .values({ checksum: randomBytes(32).toString('hex'), sizeBytes: 1, fileName: 'calls-test.nc', state: 'ready', isEnsemble: true, members: [0, 1, 2] })
@@ -267,7 +270,6 @@ describe('regime calls: drafts, publish with e-mail through a real SMTP server, 
       await t.db.db.delete(subscriptions).where(inArray(subscriptions.email, [near, far]));
       await t.db.db.delete(runs).where(eq(runs.id, run.id));
       await t.db.db.delete(regions).where(eq(regions.id, region));
-      await t.db.db.delete(calibrationSets).where(eq(calibrationSets.version, cal.version));
     }
   });
 

@@ -11,7 +11,8 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { Database } from '../../server/db/client.ts';
-import { calibrationSets, regionClimatology, regions, runs, signalRows } from '../../server/db/schema.ts';
+import { regionClimatology, regions, runs, signalRows } from '../../server/db/schema.ts';
+import { ensureDefaultCalibrationSet, latestCalibrationSet } from '../../server/services/calibration.ts';
 
 export const DAY1 = '2026-12-02';
 export const DAY2 = '2026-12-03';
@@ -53,7 +54,9 @@ export async function seedScenarioFixture(db: Database): Promise<Fixture> {
     runLater: randomUUID(),
     checksums: { E1: `e1${tag}`.padEnd(64, '1'), E0: `e0${tag}`.padEnd(64, '0'), D1: `d1${tag}`.padEnd(64, 'd') },
   };
-  const [cal] = await db.insert(calibrationSets).values({ name: `test ${tag}`, params: {} }).returning();
+  // The real first calibration set (the defaults), shared with the other test files of this database.
+  await ensureDefaultCalibrationSet(db);
+  const cal = await latestCalibrationSet(db);
   const square = { type: 'Polygon', coordinates: [[[10, 60], [11, 60], [11, 61], [10, 61], [10, 60]]] };
   await db.insert(regions).values([
     { id: f.regionH, name: `Alpha Fjell ${tag}`, kind: 'hydro', properties: {}, geometry: square, areaKm2: 5000 },

@@ -54,6 +54,12 @@ beforeEach(() => {
         return new Response(JSON.stringify(me), { status: 200 });
       }
       if (url.includes('/api/snapshots?')) return new Response(JSON.stringify({ snapshots: [], total: 0 }), { status: 200 });
+      if (url.includes('/api/scenarios/summary')) {
+        const band = { p10: null, p50: null, p90: null };
+        const overall = Object.fromEntries(['precipMm', 'snowShare', 'cloudPct', 'ghiKwhM2', 'solarGwh', 'inflowGwh', 'anomalyMm'].map((q) => [q, band]));
+        return new Response(JSON.stringify({ rows: [], overall, runs: [], previousRuns: [], weights: { kind: 'equal', callId: null, publishedAt: null } }), { status: 200 });
+      }
+      if (url.endsWith('/api/scenario-views')) return new Response(JSON.stringify({ views: [] }), { status: 200 });
       if (url.endsWith('/api/regime-calls')) return new Response(JSON.stringify({ calls: [] }), { status: 200 });
       if (url.endsWith('/api/regions')) return new Response(JSON.stringify({ regions: [] }), { status: 200 });
       if (url.endsWith('/api/calibration-sets')) return new Response(JSON.stringify({ sets: [] }), { status: 200 });

@@ -7,7 +7,7 @@ import type { Role } from '@shared/roles.ts';
 import { QUANTITY_LABELS, SCENARIO_QUANTITIES, type SavedView, type ScenarioQuantity, type ScenarioRow, type ScenarioSummary } from '@shared/api/scenarios.ts';
 import { CAUTIONS } from '@shared/cautions.ts';
 import { DataGrid } from '@/components/grid/DataGrid.tsx';
-import { Card, CautionNote, PageHeader } from '@/components/Page.tsx';
+import { Card, CautionNote, EmptyState, PageHeader } from '@/components/Page.tsx';
 import { formatCycle } from '@/lib/format.ts';
 import { exportUrl, fetchScenarioPage, myRolesQuery, scenarioSummaryQuery } from './api.ts';
 import { scenarioColumns, summaryColumns } from './columns.tsx';
@@ -172,6 +172,11 @@ export function ScenariosPage() {
           The scenarios could not be loaded: {summary.error.message}
           {problemDetails(summary.error)}
         </p>
+      ) : null}
+      {summary.data && summary.data.runs.length === 0 ? (
+        <EmptyState icon="scenarios" title="No scenarios yet">
+          Scenario rows appear once a run has been diagnosed and its regional signals computed; widen the filter if runs exist.
+        </EmptyState>
       ) : null}
       <div className="flex flex-wrap items-center justify-between gap-2">
         <SavedViews current={currentView} onApply={applyView} />
