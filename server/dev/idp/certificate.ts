@@ -54,7 +54,9 @@ export function selfSignedCertificate(keys: { publicKey: crypto.KeyObject; priva
   const notBefore = new Date(Date.now() - 86_400_000);
   const notAfter = new Date(notBefore.getTime() + days * 86_400_000);
   const serial = crypto.randomBytes(16);
-  serial[0] &= 0x7f;
+  // Positive (top bit clear) and minimal (first byte not zero): a leading zero byte would make the
+  // DER integer non-canonical, and strict parsers refuse such a certificate.
+  serial[0] = (serial[0] & 0x7f) | 0x40;
   const tbs = sequence(
     tlv(0xa0, integer(Buffer.from([2]))), // version 3
     integer(serial),
