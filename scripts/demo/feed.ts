@@ -25,6 +25,9 @@ export const DEMO_TOKEN_NAME = 'demo-feed';
 
 const log = (line: string) => console.log(`[demo] ${line}`);
 
+/** The demo feed uploads runs (meteorologist) and sets up regions and subscribers (admin). */
+const DEMO_TOKEN_ROLES = ['meteorologist', 'admin'] as const;
+
 /** Reuses the token in the file while it is live; otherwise issues a new one and writes it (0600). */
 export async function ensureDemoToken(databaseUrl: string, tokenFile = DEMO_TOKEN_FILE): Promise<'kept' | 'issued'> {
   const { createDb } = await import('../../server/db/client.ts');
@@ -34,11 +37,11 @@ export async function ensureDemoToken(databaseUrl: string, tokenFile = DEMO_TOKE
     const existing = fs.existsSync(tokenFile) ? fs.readFileSync(tokenFile, 'utf8').trim() : '';
     if (existing) {
       const check = await authenticateApiToken(db.db, existing);
-      if (check.ok && check.user.roles.includes('meteorologist')) return 'kept';
+      if (check.ok && DEMO_TOKEN_ROLES.every((r) => check.user.roles.includes(r))) return 'kept';
     }
     const { token } = await issueApiToken(
       db.db,
-      { name: DEMO_TOKEN_NAME, roles: ['meteorologist'], createdBy: null },
+      { name: DEMO_TOKEN_NAME, roles: [...DEMO_TOKEN_ROLES], createdBy: null },
       { actorLabel: 'system:npm-start', actorId: null, requestId: null, clientAddress: null },
     );
     fs.mkdirSync(path.dirname(tokenFile), { recursive: true });
@@ -97,6 +100,10 @@ export async function feedDemo(options: { baseUrl: string; token: string; demoDi
   const have = new Map<string, { id: string; state: string }>();
   if (known.ok) for (const r of ((await known.json()) as { runs: { id: string; state: string; checksum: string }[] }).runs) have.set(r.checksum, r);
   else await known.body?.cancel();
+  // Regions and subscribers first: each run's signals are derived for the regions active when it is processed.
+  const regions = manifest.files.find((f) => f.format === 'geojson');
+  if (regions) await sendRegions(options.baseUrl, options.token, path.join(demoDir, regions.path));
+  await sendSubscribers(options.baseUrl, options.token, path.join(demoDir, 'subscribers.json'));
   for (const file of manifest.files.filter((f) => f.format === 'grib2' || f.format === 'netcdf4')) {
     const existing = have.get(file.sha256);
     if (existing) {
@@ -104,14 +111,33 @@ export async function feedDemo(options: { baseUrl: string; token: string; demoDi
       log(`${file.path}: already uploaded as run ${existing.id} (${existing.state})`);
       continue;
     }
-    const result = await uploadRunFile({ baseUrl: options.baseUrl, token: options.token, file: path.join(demoDir, file.path) });
+    const result = await uploadRunFile({ baseUrl: options.baseUrl, token: options.token, file: path.join(demoDir, file.path), model: file.model ?? undefined });
     if (result.duplicate) duplicates++;
     else uploaded++;
     log(`${file.path}: ${result.duplicate ? 'already uploaded' : 'uploaded'} as run ${result.run.id} (${result.run.state})`);
   }
-  const regions = manifest.files.find((f) => f.format === 'geojson');
-  if (regions) await sendRegions(options.baseUrl, options.token, path.join(demoDir, regions.path));
   return { uploaded, duplicates };
+}
+
+/** POST /api/subscriptions for each demo subscriber the server does not have yet. */
+async function sendSubscribers(baseUrl: string, token: string, file: string): Promise<void> {
+  if (!fs.existsSync(file)) return;
+  const headers = { Authorization: `Bearer ${token}`, Accept: 'application/json', 'Content-Type': 'application/json' };
+  const known = await fetch(`${baseUrl}/api/subscriptions`, { headers });
+  if (!known.ok) {
+    await known.body?.cancel();
+    return log(`subscribers: the server answered ${known.status}; skipped`);
+  }
+  const have = new Set(((await known.json()) as { subscriptions: { email: string }[] }).subscriptions.map((s) => s.email));
+  const wanted = JSON.parse(fs.readFileSync(file, 'utf8')) as { email: string; name: string; regions: string[] }[];
+  let added = 0;
+  for (const sub of wanted.filter((w) => !have.has(w.email))) {
+    const res = await fetch(`${baseUrl}/api/subscriptions`, { method: 'POST', headers, body: JSON.stringify({ email: sub.email, name: sub.name, regionIds: sub.regions }) });
+    await res.body?.cancel();
+    if (res.ok) added++;
+    else log(`subscribers: ${sub.email} refused (${res.status})`);
+  }
+  log(`subscribers: ${added} added, ${wanted.length - added} already there or refused`);
 }
 
 function option(argv: string[], name: string): string | undefined {

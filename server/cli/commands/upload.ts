@@ -153,13 +153,17 @@ export async function uploadRunFile(options: {
   baseUrl: string;
   token: string;
   file: string;
+  /** the desk's name for the model (form field "model"), when the file's own is unhelpful */
+  model?: string;
   onProgress?: (sent: number, total: number) => void;
 }): Promise<UploadResult> {
   const { baseUrl, token, file, onProgress } = options;
   const size = (await fs.promises.stat(file)).size;
   const boundary = `----liftwise-${randomBytes(12).toString('hex')}`;
   const safeName = path.basename(file).replace(/["\r\n\\]/g, '_');
-  const head = Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="${safeName}"\r\nContent-Type: application/octet-stream\r\n\r\n`);
+  // The model field goes first: the server reads text fields that arrive before the file.
+  const modelPart = options.model ? `--${boundary}\r\nContent-Disposition: form-data; name="model"\r\n\r\n${options.model}\r\n` : '';
+  const head = Buffer.from(`${modelPart}--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="${safeName}"\r\nContent-Type: application/octet-stream\r\n\r\n`);
   const tail = Buffer.from(`\r\n--${boundary}--\r\n`);
   const url = new URL('/api/runs', baseUrl);
   const answer = await new Promise<Answer>((resolve, reject) => {
