@@ -35,20 +35,8 @@ import { computeMemberSignals, type ComputedSignalRow, type SignalRegion } from 
 
 export class UsageError extends Error {}
 
-export interface CliSignalRow {
-  member: number;
-  region: string;
-  day: string;
-  precipMm: number | null;
-  snowShare: number | null;
-  cloudPct: number | null;
-  ghiKwhM2: number | null;
-  solarGwh: number | null;
-  inflowGwh: number | null;
-  modelPrecipMm: number | null;
-  modelCloudPct: number | null;
-  hoursCovered: number;
-}
+/** A row as the command prints it: the computed row with its member, and `region` for the region id. */
+export type CliSignalRow = { member: number; region: string } & Omit<ComputedSignalRow, 'regionId'>;
 
 /** Regions from a parsed GeoJSON value; throws one line per problem. */
 export function regionsFromGeojson(value: unknown): SignalRegion[] {

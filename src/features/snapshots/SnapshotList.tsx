@@ -3,6 +3,7 @@ import { Fragment, useState } from 'react';
 import { Card, EmptyState } from '@/components/Page.tsx';
 import { exportUrl, snapshotListQuery, verifySnapshot, type SnapshotListItem, type SnapshotVerifyResult } from './api.ts';
 import { formatUtc } from './units.ts';
+import { Pager } from './Pager.tsx';
 
 const PAGE = 20;
 const inputClass = 'mt-0.5 rounded border border-line bg-surface px-2 py-1 text-ink';
@@ -141,17 +142,7 @@ export function SnapshotList({ picked, onPick }: { picked: number[]; onPick: (id
               </tbody>
             </table>
           </div>
-          <div className="mt-2 flex items-center gap-2 text-xs text-ink-muted">
-            <span className="num">
-              {offset + 1}–{Math.min(offset + PAGE, total)} of {total}
-            </span>
-            <button type="button" disabled={offset === 0} onClick={() => setOffset(Math.max(0, offset - PAGE))} className="rounded border border-line px-2 py-0.5 disabled:opacity-40">
-              Newer
-            </button>
-            <button type="button" disabled={offset + PAGE >= total} onClick={() => setOffset(offset + PAGE)} className="rounded border border-line px-2 py-0.5 disabled:opacity-40">
-              Older
-            </button>
-          </div>
+          <Pager offset={offset} pageSize={PAGE} total={total} onChange={setOffset} />
         </>
       )}
     </Card>
