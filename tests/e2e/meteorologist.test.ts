@@ -6,8 +6,10 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import { eq } from 'drizzle-orm';
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { subscriptions } from '../../server/db/schema.ts';
 import { signIn, startTestApp, type TestApp } from '../integration/support.ts';
 import { launchBrowser, newDesk, screenshot, signInAs } from './browser.ts';
 import { processedEnsemble, putRegions } from './seed.ts';
@@ -37,6 +39,8 @@ describe('Meteorologist: run view, regime call, outbox', () => {
 
   afterAll(async () => {
     await closeBrowser?.();
+    // Other test files of this database count the recipients of their own calls.
+    await t?.db.db.delete(subscriptions).where(eq(subscriptions.email, subscriber));
     await t?.close();
     fs.rmSync(out, { recursive: true, force: true });
   });
