@@ -84,7 +84,7 @@ describe('processing chain: upload -> read -> QG diagnosis per member and step -
     const done = await waitReady(run.id);
     expect(done).toMatchObject({ state: 'ready', isEnsemble: true, members: [0, 1, 2] });
     const members = await t.db.db.select().from(runMembers).where(eq(runMembers.runId, run.id));
-    expect(members.map((m) => [m.member, m.state])).toEqual([
+    expect(members.map((m) => [m.member, m.state]).sort((a, b) => Number(a[0]) - Number(b[0]))).toEqual([
       [0, 'done'],
       [1, 'done'],
       [2, 'done'],
