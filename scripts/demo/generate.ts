@@ -23,12 +23,12 @@ import {
 } from './runs.ts';
 
 /** Bump when the output would change for the same configuration. */
-export const GENERATOR_VERSION = 1;
+export const GENERATOR_VERSION = 2;
 const STANDARD_GRAVITY = 9.80665; // m s-2, WMO: geopotential height (gpm) = Phi / g0
 
 export interface DemoConfig {
   deterministicDomain: Domain;
-  /** the ensemble runs coarser, as operational ensembles do, which also keeps the files small */
+  /** the ensemble's grid (the demo uses the deterministic run's 0.5 degree; a coarser one keeps files small) */
   ensembleDomain: Domain;
   levelsHpa: number[];
   steps: number[];
@@ -38,7 +38,7 @@ export interface DemoConfig {
 
 export const DEFAULT_CONFIG: DemoConfig = {
   deterministicDomain: NORDVALE_DOMAIN,
-  ensembleDomain: { ...NORDVALE_DOMAIN, resolution: 1 },
+  ensembleDomain: NORDVALE_DOMAIN,
   levelsHpa: [...PRESSURE_LEVELS_HPA],
   steps: [...FORECAST_STEPS_H],
   members: 20,
