@@ -40,6 +40,7 @@ import { regimeCalls, regionClimatology, regions, runClusterings, runs, savedVie
 import { recordAudit, type AuditEventInput } from './audit.ts';
 import { notFound } from '../errors.ts';
 import { weightedPercentiles } from '../science/statistics.ts';
+import { memberPercents, type CallClustering } from './call-weights.ts';
 
 export interface WeightSource {
   kind: 'call' | 'equal';
@@ -132,23 +133,13 @@ async function latestPublishedWeights(db: Database) {
   const parsed = callWeightsSchema.safeParse(call.weights);
   if (!parsed.success) return null;
   const w = parsed.data;
-  // key -> pct, and the runs the call names
-  const pct = new Map<string, number>();
-  const named = new Set<string>();
-  if (w.basis === 'member') {
-    for (const { key, pct: p } of w.weights) {
-      pct.set(key, (pct.get(key) ?? 0) + p);
-      named.add(key.split(':')[0]);
-    }
-  } else {
-    const [clustering] = await db.select({ runId: runClusterings.runId, clusters: runClusterings.clusters }).from(runClusterings).where(eq(runClusterings.id, w.clusteringId!));
-    if (!clustering) return null;
-    named.add(clustering.runId);
-    for (const c of clustering.clusters as Array<{ id: number; members: number[] }>) {
-      const p = w.weights.find((x) => x.key === String(c.id))?.pct ?? 0;
-      for (const m of c.members) pct.set(scenarioKey(clustering.runId, m), p / c.members.length);
-    }
+  let clustering: CallClustering | null = null;
+  if (w.basis === 'cluster') {
+    const [row] = await db.select({ runId: runClusterings.runId, clusters: runClusterings.clusters }).from(runClusterings).where(eq(runClusterings.id, w.clusteringId!));
+    if (!row) return null;
+    clustering = { runId: row.runId, clusters: row.clusters as CallClustering['clusters'] };
   }
+  const { pct, namedRuns: named } = memberPercents(w, clustering);
   return { source: { kind: 'call' as const, callId: call.id, publishedAt: call.publishedAt!.toISOString() }, pct, named };
 }
 

@@ -14,6 +14,7 @@ import { unprocessable } from '../errors.ts';
 import { scenarioSpread } from '../science/statistics.ts';
 import type { JsonObject, JsonValue } from '../seal/canonical-json.ts';
 import type { DbExecutor } from './audit.ts';
+import { memberPercents, type CallClustering } from './call-weights.ts';
 
 const day = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'a day as YYYY-MM-DD');
 
@@ -54,7 +55,7 @@ export interface ScenarioKey {
 /** A published call's weights with the clustering its cluster basis refers to. */
 export interface CallWeighting {
   weights: CallWeights;
-  clustering: { runId: string; clusters: { id: string; members: number[] }[] } | null;
+  clustering: CallClustering | null;
 }
 
 const scenarioKey = (s: ScenarioKey) => `${s.runId}:${s.member}`;
@@ -65,30 +66,11 @@ const scenarioKey = (s: ScenarioKey) => `${s.runId}:${s.member}`;
  * equally by its members; members the call does not mention get 0); a run the call does not
  * name, or no call at all, gets equal weights. Percentiles are taken across a run's members, so
  * this per-run normalisation is what the percentiles see.
- * The traders' grid (server/services/scenarios.ts) applies the same rule; the two are meant to
- * become one function.
+ * The call is read by memberPercents (call-weights.ts), as for the traders' grid, which keeps the
+ * call's weights across runs instead (it shows % of the whole scope).
  */
 export function scenarioWeightsFromCall(scenarios: readonly ScenarioKey[], call: CallWeighting | null): Map<string, number> {
-  const raw = new Map<string, number>();
-  const namedRuns = new Set<string>();
-  if (call?.weights.basis === 'member') {
-    for (const w of call.weights.weights) {
-      const at = w.key.lastIndexOf(':');
-      if (at <= 0) continue;
-      namedRuns.add(w.key.slice(0, at));
-      raw.set(w.key, (raw.get(w.key) ?? 0) + w.pct);
-    }
-  } else if (call?.weights.basis === 'cluster' && call.clustering) {
-    namedRuns.add(call.clustering.runId);
-    for (const w of call.weights.weights) {
-      const cluster = call.clustering.clusters.find((c) => String(c.id) === w.key);
-      if (!cluster || cluster.members.length === 0) continue;
-      for (const m of cluster.members) {
-        const key = `${call.clustering.runId}:${m}`;
-        raw.set(key, (raw.get(key) ?? 0) + w.pct / cluster.members.length);
-      }
-    }
-  }
+  const { pct: raw, namedRuns } = call ? memberPercents(call.weights, call.clustering) : { pct: new Map<string, number>(), namedRuns: new Set<string>() };
   const byRun = new Map<string, ScenarioKey[]>();
   for (const s of scenarios) {
     const list = byRun.get(s.runId) ?? [];
